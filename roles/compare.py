@@ -1,0 +1,104 @@
+"""Two views -> agreement figures.
+
+Between the groupings: adjusted Rand index (Hubert & Arabie 1985), normalised mutual
+information (scikit-learn's arithmetic-mean normalisation) and the contingency table.
+Per node: the Jaccard index (Jaccard 1912) of its k nearest neighbours in each view.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+__all__ = ["Comparison", "compare_views", "neighbour_overlap"]
+
+
+@dataclass(frozen=True, eq=False)
+class Comparison:
+    """How far the local and far views agree.
+
+    Attributes
+    ----------
+    ari, nmi : float
+        Agreement of the two groupings (1 = identical up to renaming).
+    contingency : ndarray of int, shape (local groups, far groups)
+        ``contingency[i, j]`` nodes are in local group i and far group j.
+    overlap : ndarray of float, shape (n,)
+        Per node, Jaccard overlap of its k nearest neighbours in the two views.
+    k : int
+        Neighbours compared per node.
+    """
+
+    ari: float
+    nmi: float
+    contingency: np.ndarray
+    overlap: np.ndarray
+    k: int
+
+
+def _neighbours(vectors: np.ndarray, k: int) -> np.ndarray:
+    from sklearn.neighbors import NearestNeighbors
+
+    x = np.asarray(vectors, dtype=np.float64)
+    norms = np.linalg.norm(x, axis=1, keepdims=True)
+    x = x / np.where(norms > 0, norms, 1.0)
+    # Euclidean distance on unit vectors orders neighbours as cosine similarity does.
+    nn = NearestNeighbors(n_neighbors=k + 1).fit(x)
+    idx = nn.kneighbors(x, return_distance=False)
+    out = np.empty((x.shape[0], k), dtype=np.int64)
+    for i, row in enumerate(idx):
+        row = row[row != i][:k]
+        out[i, : len(row)] = row
+        if len(row) < k:  # duplicates of i pushed it out of its own list
+            out[i, len(row) :] = idx[i, -1]
+    return out
+
+
+def neighbour_overlap(a: np.ndarray, b: np.ndarray, *, k: int = 10) -> np.ndarray:
+    """Jaccard overlap |A ∩ B| / |A ∪ B| of each row's k nearest neighbours in two views.
+
+    References
+    ----------
+    .. [1] P. Jaccard, "The distribution of the flora in the alpine zone",
+       New Phytologist 11(2), 1912. doi:10.1111/j.1469-8137.1912.tb05611.x
+    """
+    n = a.shape[0]
+    if n < 2:
+        return np.ones(n)
+    k = max(1, min(k, n - 1))
+    na, nb = _neighbours(a, k), _neighbours(b, k)
+    out = np.empty(n)
+    for i in range(n):
+        sa, sb = set(na[i].tolist()), set(nb[i].tolist())
+        out[i] = len(sa & sb) / len(sa | sb)
+    return out
+
+
+def compare_views(
+    local_vectors: np.ndarray,
+    far_vectors: np.ndarray,
+    local_labels: np.ndarray,
+    far_labels: np.ndarray,
+    *,
+    k: int = 10,
+) -> Comparison:
+    """Agreement of the two views, as groupings and node by node.
+
+    References
+    ----------
+    .. [1] L. Hubert, P. Arabie, "Comparing partitions", Journal of Classification 2,
+       1985. doi:10.1007/BF01908075
+    """
+    from sklearn.metrics import adjusted_rand_score, normalized_mutual_info_score
+    from sklearn.metrics.cluster import contingency_matrix
+
+    n = len(local_labels)
+    k_used = max(1, min(k, n - 1)) if n > 1 else 0
+    return Comparison(
+        ari=float(adjusted_rand_score(local_labels, far_labels)),
+        nmi=float(normalized_mutual_info_score(local_labels, far_labels)),
+        contingency=np.asarray(contingency_matrix(local_labels, far_labels)),
+        overlap=neighbour_overlap(local_vectors, far_vectors, k=k),
+        k=k_used,
+    )

@@ -1,0 +1,244 @@
+"""Run parameters: frozen dataclasses, their defaults, validation and TOML loading.
+
+Every key of the TOML file is optional. Unknown keys and out-of-range or mistyped values
+are refused with one message shape::
+
+    The 'q' parameter of [views.local] must be a number greater than 0. Got -1 instead.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+import sys
+from collections.abc import Mapping
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+if sys.version_info >= (3, 11):
+    import tomllib
+else:  # pragma: no cover
+    import tomli as tomllib
+
+from .errors import ConfigError
+
+__all__ = [
+    "WalkConfig",
+    "EmbeddingConfig",
+    "ViewConfig",
+    "ClusterConfig",
+    "Config",
+    "load_config",
+    "config_from_mapping",
+    "DEFAULT_SEED",
+]
+
+DEFAULT_SEED = 20261202
+
+
+def _check_int(section: str, name: str, value: Any, low: int, high: int) -> int:
+    if isinstance(value, bool) or not isinstance(value, int):
+        raise ConfigError(
+            f"The '{name}' parameter of {section} must be a whole number from {low} to {high}. "
+            f"Got {value!r} instead."
+        )
+    if not low <= value <= high:
+        raise ConfigError(
+            f"The '{name}' parameter of {section} must be a whole number from {low} to {high}. "
+            f"Got {value!r} instead."
+        )
+    return value
+
+
+def _check_float(section: str, name: str, value: Any, low: float, high: float) -> float:
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        raise ConfigError(
+            f"The '{name}' parameter of {section} must be a number greater than {low:g} "
+            f"and at most {high:g}. Got {value!r} instead."
+        )
+    v = float(value)
+    if not math.isfinite(v) or not (low < v <= high):
+        raise ConfigError(
+            f"The '{name}' parameter of {section} must be a number greater than {low:g} "
+            f"and at most {high:g}. Got {value!r} instead."
+        )
+    return v
+
+
+@dataclass(frozen=True)
+class WalkConfig:
+    """How many walks start at each node and how many nodes each walk visits."""
+
+    walks_per_node: int = 10
+    walk_length: int = 40
+
+    def __post_init__(self) -> None:
+        _check_int("[walks]", "walks_per_node", self.walks_per_node, 1, 1000)
+        _check_int("[walks]", "walk_length", self.walk_length, 2, 10000)
+
+
+@dataclass(frozen=True)
+class EmbeddingConfig:
+    """Skip-gram settings (gensim Word2Vec, sg=1, negative sampling)."""
+
+    dimensions: int = 64
+    window: int = 5
+    epochs: int = 1
+    negative: int = 5
+
+    def __post_init__(self) -> None:
+        _check_int("[embedding]", "dimensions", self.dimensions, 2, 1024)
+        _check_int("[embedding]", "window", self.window, 1, 100)
+        _check_int("[embedding]", "epochs", self.epochs, 1, 100)
+        _check_int("[embedding]", "negative", self.negative, 1, 50)
+
+
+@dataclass(frozen=True)
+class ViewConfig:
+    """node2vec return parameter p and in-out parameter q of one view."""
+
+    p: float = 1.0
+    q: float = 1.0
+    name: str = "view"
+
+    def __post_init__(self) -> None:
+        section = f"[views.{self.name}]"
+        _check_float(section, "p", self.p, 0.0, 1000.0)
+        _check_float(section, "q", self.q, 0.0, 1000.0)
+        object.__setattr__(self, "p", float(self.p))
+        object.__setattr__(self, "q", float(self.q))
+
+
+def _local_default() -> ViewConfig:
+    # q > 1 keeps walks near their start: breadth-like context (Grover & Leskovec 2016, 3.1).
+    return ViewConfig(p=1.0, q=2.0, name="local")
+
+
+def _far_default() -> ViewConfig:
+    # q < 1 pushes walks outward: depth-like context.
+    return ViewConfig(p=1.0, q=0.5, name="far")
+
+
+@dataclass(frozen=True)
+class ClusterConfig:
+    """HDBSCAN settings; ``min_cluster_size = 0`` means: chosen from the node count."""
+
+    min_cluster_size: int = 0
+    reduce_to: int = 16
+
+    def __post_init__(self) -> None:
+        _check_int("[cluster]", "min_cluster_size", self.min_cluster_size, 0, 100000)
+        _check_int("[cluster]", "reduce_to", self.reduce_to, 2, 256)
+
+
+@dataclass(frozen=True)
+class Config:
+    """The whole effective configuration of one run."""
+
+    seed: int = DEFAULT_SEED
+    walks: WalkConfig = field(default_factory=WalkConfig)
+    embedding: EmbeddingConfig = field(default_factory=EmbeddingConfig)
+    local: ViewConfig = field(default_factory=_local_default)
+    far: ViewConfig = field(default_factory=_far_default)
+    cluster: ClusterConfig = field(default_factory=ClusterConfig)
+
+    def __post_init__(self) -> None:
+        _check_int("the configuration", "seed", self.seed, 0, 2**32 - 1)
+
+    @property
+    def views(self) -> dict[str, ViewConfig]:
+        return {"local": self.local, "far": self.far}
+
+    def with_seed(self, seed: int | None) -> Config:
+        """Return a copy with ``seed`` replaced (``None`` keeps the current one)."""
+        return self if seed is None else dataclasses.replace(self, seed=seed)
+
+    def as_dict(self) -> dict[str, Any]:
+        """The configuration in the same shape as the TOML file."""
+        return {
+            "seed": self.seed,
+            "walks": dataclasses.asdict(self.walks),
+            "embedding": dataclasses.asdict(self.embedding),
+            "views": {name: {"p": view.p, "q": view.q} for name, view in self.views.items()},
+            "cluster": dataclasses.asdict(self.cluster),
+        }
+
+
+_SECTIONS = {"walks": WalkConfig, "embedding": EmbeddingConfig, "cluster": ClusterConfig}
+
+
+def _fields(cls: type) -> list[str]:
+    return [f.name for f in dataclasses.fields(cls) if f.name != "name"]
+
+
+def _section(data: Any, label: str, cls: type, **extra: Any) -> Any:
+    if not isinstance(data, Mapping):
+        raise ConfigError(f"{label} must be a table of keys. Got {data!r} instead.")
+    allowed = _fields(cls)
+    unknown = sorted(set(data) - set(allowed))
+    if unknown:
+        raise ConfigError(
+            f"Unknown key {unknown[0]!r} in {label}. Allowed keys: {', '.join(allowed)}."
+        )
+    return cls(**dict(data), **extra)
+
+
+def config_from_mapping(data: Mapping[str, Any]) -> Config:
+    """Build a :class:`Config` from a parsed TOML document, refusing unknown keys."""
+    top = {"seed", "walks", "embedding", "views", "cluster"}
+    unknown = sorted(set(data) - top)
+    if unknown:
+        raise ConfigError(
+            f"Unknown key {unknown[0]!r} at the top of the configuration. "
+            f"Allowed keys: {', '.join(sorted(top))}."
+        )
+    kwargs: dict[str, Any] = {}
+    if "seed" in data:
+        kwargs["seed"] = data["seed"]
+    for key, cls in _SECTIONS.items():
+        if key in data:
+            kwargs[key] = _section(data[key], f"[{key}]", cls)
+    if "views" in data:
+        views = data["views"]
+        if not isinstance(views, Mapping):
+            raise ConfigError(f"[views] must be a table of keys. Got {views!r} instead.")
+        unknown = sorted(set(views) - {"local", "far"})
+        if unknown:
+            raise ConfigError(f"Unknown view {unknown[0]!r} in [views]. Allowed views: local, far.")
+        defaults = {"local": _local_default(), "far": _far_default()}
+        for name in ("local", "far"):
+            if name in views:
+                base = dataclasses.asdict(defaults[name])
+                base.pop("name")
+                section = views[name]
+                if isinstance(section, Mapping):
+                    base.update(section)
+                    section = base
+                kwargs[name] = _section(section, f"[views.{name}]", ViewConfig, name=name)
+    return Config(**kwargs)
+
+
+def load_config(path: str | Path | None) -> Config:
+    """Read a TOML configuration file; ``None`` gives the defaults.
+
+    Raises
+    ------
+    ConfigError
+        When the file is missing, is not valid TOML, or holds unknown keys or bad values.
+    """
+    if path is None:
+        return Config()
+    p = Path(path)
+    if not p.is_file():
+        raise ConfigError(f"{p}: the configuration file does not exist or is not a file.")
+    try:
+        data = tomllib.loads(p.read_text(encoding="utf-8-sig"))
+    except UnicodeDecodeError as exc:
+        raise ConfigError(f"{p}: the configuration file is not UTF-8 text ({exc}).") from None
+    except tomllib.TOMLDecodeError as exc:
+        raise ConfigError(f"{p}: the configuration is not valid TOML: {exc}.") from None
+    try:
+        return config_from_mapping(data)
+    except ConfigError as exc:
+        raise ConfigError(f"{p}: {exc}") from None

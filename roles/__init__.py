@@ -1,0 +1,12 @@
+"""roles: communities, bridges, hubs and single points of failure of a network.
+
+The main entry point is :func:`run`, which takes a networkx graph and returns a
+:class:`Result` (a node table as a pandas DataFrame and a summary dict).
+"""
+
+from .config import Config, load_config
+from .errors import ConfigError, InputError, RolesError
+from .pipeline import Result, run
+
+__all__ = ["run", "Result", "Config", "load_config", "RolesError", "InputError", "ConfigError"]
+__version__ = "0.1.0"

@@ -1,0 +1,248 @@
+"""The ``roles`` command: parse options, call the pipeline, map errors to exit codes.
+
+Exit status: 0 success, 2 a problem with the input or options (one ``error:`` line),
+130 interrupted by Ctrl-C, 1 an unexpected internal error.
+"""
+
+from __future__ import annotations
+
+import argparse
+import logging
+import sys
+from pathlib import Path
+
+from .errors import RolesError
+
+__all__ = ["main", "build_parser"]
+
+log = logging.getLogger("roles")
+
+EXAMPLES = Path(__file__).resolve().parent / "examples"
+
+
+def _add_input(p: argparse.ArgumentParser) -> None:
+    p.add_argument(
+        "edges",
+        metavar="EDGES",
+        help="the network: a CSV or TSV edge list with a header row "
+        "(source,target[,weight]), a GraphML file or a node-link JSON file",
+    )
+    p.add_argument(
+        "--out",
+        required=True,
+        metavar="DIR",
+        help="folder to write the results into (created if needed; files of an "
+        "earlier run there are replaced only when this run succeeds)",
+    )
+    p.add_argument(
+        "--config",
+        metavar="FILE",
+        help="TOML file of parameters; every key is optional (see the README)",
+    )
+    p.add_argument(
+        "--seed",
+        type=int,
+        metavar="N",
+        help="random seed; overrides the seed in --config. Same seed, same input: same results",
+    )
+    p.add_argument(
+        "--directed",
+        action="store_true",
+        help="read each tie as pointing from source to target (for supply "
+        "networks: supplier to customer)",
+    )
+    p.add_argument(
+        "--source-column",
+        default="source",
+        metavar="NAME",
+        help="header of the column holding the first member of each tie (default: source)",
+    )
+    p.add_argument(
+        "--target-column",
+        default="target",
+        metavar="NAME",
+        help="header of the column holding the second member (default: target)",
+    )
+    p.add_argument(
+        "--weight-column",
+        default="weight",
+        metavar="NAME",
+        help="header of the tie-strength column, if any (default: weight; "
+        "ties count 1 when the column is absent)",
+    )
+    p.add_argument("--quiet", action="store_true", help="print nothing but errors")
+    p.add_argument(
+        "--debug", action="store_true", help="on an error, show the full Python traceback too"
+    )
+
+
+def _add_report_options(p: argparse.ArgumentParser) -> None:
+    p.add_argument(
+        "--nodes",
+        metavar="FILE",
+        help="CSV of member attributes: a 'node' column plus any others "
+        "(department, site, tier...); members listed only here are kept "
+        "as members without ties",
+    )
+    p.add_argument(
+        "--title", default=None, metavar="TEXT", help="title printed on the cover of the report"
+    )
+    p.add_argument(
+        "--kind",
+        choices=["organisation", "supply", "general"],
+        default="general",
+        help="wording of the report: 'organisation' speaks of people and teams, "
+        "'supply' of firms, suppliers and customers (default: general)",
+    )
+    p.add_argument(
+        "--group-by",
+        metavar="COLUMN",
+        help="a column of --nodes holding formal groups (department, tier) to "
+        "compare with the communities found",
+    )
+    p.add_argument(
+        "--min-group-size",
+        type=int,
+        default=5,
+        metavar="N",
+        help="never report on an attribute group smaller than N members (default: 5)",
+    )
+    p.add_argument(
+        "--pseudonymize",
+        action="store_true",
+        help="replace every member's name by a stable code in every output",
+    )
+    p.add_argument(
+        "--key-file",
+        metavar="FILE",
+        help="with --pseudonymize: also write the code-to-name key to FILE "
+        "(keep it apart from the report)",
+    )
+    p.add_argument(
+        "--paper",
+        choices=["a4", "letter"],
+        default="a4",
+        help="paper size of the PDF (default: a4)",
+    )
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="roles",
+        description="Find a network's communities, the members that bridge them, its hubs "
+        "and its single points of failure, and write a printed report.",
+    )
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+    rep = sub.add_parser(
+        "report",
+        help="the whole job: analyse a network and write the report",
+        description="Analyse a network and write report.pdf, report.html, nodes.csv, "
+        "summary.json and graph.graphml into --out.",
+    )
+    _add_input(rep)
+    _add_report_options(rep)
+    emb = sub.add_parser(
+        "embed",
+        help="compute the two node2vec views only and write their vectors",
+        description="Compute the local and far node2vec views and write local.csv, far.csv "
+        "and summary.json into --out.",
+    )
+    _add_input(emb)
+    emb.add_argument(
+        "--keep-walks",
+        action="store_true",
+        help="also write the random walks (local.walks.tsv, far.walks.tsv)",
+    )
+    demo = sub.add_parser(
+        "demo",
+        help="write the report of a bundled invented example",
+        description="Write the report of one of the bundled invented scenarios.",
+    )
+    demo.add_argument(
+        "--out",
+        default="demo-report",
+        metavar="DIR",
+        help="folder to write the demo report into (default: demo-report)",
+    )
+    demo.add_argument(
+        "--scenario",
+        choices=["company", "suppliers"],
+        default="company",
+        help="'company': a made-up firm's collaboration network; 'suppliers': "
+        "a made-up manufacturer's supplier network (default: company)",
+    )
+    demo.add_argument("--seed", type=int, metavar="N", help="random seed")
+    demo.add_argument("--quiet", action="store_true", help="print nothing but errors")
+    demo.add_argument("--debug", action="store_true", help="show tracebacks on errors")
+    return parser
+
+
+def _demo_args(args: argparse.Namespace) -> argparse.Namespace:
+    from .demo import scenario
+
+    s = scenario(args.scenario)
+    return argparse.Namespace(
+        command="report",
+        edges=str(s.edges),
+        nodes=str(s.nodes),
+        out=args.out,
+        config=None,
+        seed=args.seed,
+        directed=s.directed,
+        source_column="source",
+        target_column="target",
+        weight_column="weight",
+        quiet=args.quiet,
+        debug=args.debug,
+        title=s.title,
+        kind=s.kind,
+        group_by=s.group_by,
+        min_group_size=5,
+        pseudonymize=False,
+        key_file=None,
+        paper="a4",
+    )
+
+
+def _dispatch(args: argparse.Namespace) -> None:
+    from . import commands
+
+    if args.command == "demo":
+        args = _demo_args(args)
+    if args.command == "report":
+        commands.report(args)
+    elif args.command == "embed":
+        commands.embed(args)
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if not args.command:
+        parser.print_help(sys.stderr)
+        return 2
+    logging.basicConfig(
+        level=logging.WARNING if args.quiet else logging.INFO,
+        format="%(message)s",
+        stream=sys.stderr,
+    )
+    try:
+        _dispatch(args)
+    except RolesError as exc:
+        if args.debug:
+            raise
+        print(f"error: {exc}", file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:
+        if args.debug:
+            raise
+        print(
+            "error: interrupted; nothing was written and earlier outputs are unchanged.",
+            file=sys.stderr,
+        )
+        return 130
+    return 0
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

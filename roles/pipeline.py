@@ -1,0 +1,364 @@
+"""run(): wires the stages, splits the seed, times each stage.
+
+The stages only read what earlier stages returned; the report reads the
+:class:`Result` and never recomputes anything.
+"""
+
+from __future__ import annotations
+
+import platform
+import time
+from collections.abc import Callable, Iterator, Mapping
+from contextlib import contextmanager
+from dataclasses import dataclass, field
+from typing import Any
+
+import networkx as nx
+import numpy as np
+import pandas as pd
+
+from .cluster import Grouping, cluster
+from .compare import Comparison, compare_views
+from .config import Config
+from .errors import InputError
+from .graph import to_csr
+
+__all__ = ["Result", "run", "COMMUNITY_VIEW", "stage_seeds"]
+
+#: The view whose groups become the report's communities. Chosen by measurement:
+#: see benchmarks/bench_views.py and the README's table (far recovers planted
+#: communities better on LFR graphs).
+COMMUNITY_VIEW = "far"
+
+Progress = Callable[[str], None]
+
+
+@dataclass(frozen=True, eq=False)
+class Result:
+    """Everything one run found; the report and the writers only read it.
+
+    Attributes
+    ----------
+    nodes : pandas.DataFrame
+        One row per node (see the README for the columns), most bridge-like not implied:
+        rows follow the graph's node order.
+    summary : dict
+        The content of ``summary.json``.
+    graph : networkx.Graph
+        The analysed graph (after loading fixes), node names as given.
+    vectors : dict
+        View name -> ndarray (n, d) of node vectors, rows in ``nodes`` order.
+    groupings : dict
+        View name -> :class:`~roles.cluster.Grouping` over the connected nodes.
+    comparison : Comparison
+        Agreement of the two views.
+    extras : dict
+        Further stage results the report may show (formal groups, confidence...).
+    """
+
+    nodes: pd.DataFrame
+    summary: dict[str, Any]
+    graph: nx.Graph
+    vectors: dict[str, np.ndarray]
+    groupings: dict[str, Grouping]
+    comparison: Comparison | None
+    extras: dict[str, Any] = field(default_factory=dict)
+
+
+def stage_seeds(seed: int, n: int = 8) -> list[int]:
+    """Independent 32-bit seeds for the stages, all derived from the one user seed.
+
+    Children 0 and 1 are the local and far walks (see :func:`roles.embed.embed_views`).
+    """
+    return [int(c.generate_state(1)[0]) for c in np.random.SeedSequence(seed).spawn(n)]
+
+
+class _Timer:
+    def __init__(self, progress: Progress | None) -> None:
+        self.timings: dict[str, float] = {}
+        self._progress = progress
+
+    @contextmanager
+    def stage(self, name: str) -> Iterator[None]:
+        if self._progress:
+            self._progress(name)
+        start = time.perf_counter()
+        try:
+            yield
+        finally:
+            self.timings[name] = round(time.perf_counter() - start, 3)
+
+
+def _versions() -> dict[str, str]:
+    from importlib.metadata import PackageNotFoundError, version
+
+    out = {"python": platform.python_version()}
+    for pkg in (
+        "roles",
+        "numpy",
+        "networkx",
+        "gensim",
+        "scikit-learn",
+        "hdbscan",
+        "numba",
+        "pandas",
+        "jinja2",
+        "weasyprint",
+        "matplotlib",
+    ):
+        try:
+            out[pkg] = version(pkg)
+        except PackageNotFoundError:
+            out[pkg] = "not installed"
+    return out
+
+
+def _louvain(graph: nx.Graph, seed: int) -> list[set]:
+    und = graph.to_undirected() if graph.is_directed() else graph
+    return list(nx.community.louvain_communities(und, weight="weight", seed=seed))
+
+
+def _modularity(graph: nx.Graph, labels: Mapping[Any, int]) -> float:
+    und = graph.to_undirected() if graph.is_directed() else graph
+    und = und.subgraph([n for n in und if und.degree(n) > 0])
+    if und.number_of_edges() == 0:
+        return 0.0
+    parts: dict[int, set] = {}
+    for node in und:
+        parts.setdefault(labels[node], set()).add(node)
+    return float(nx.community.modularity(und, parts.values(), weight="weight"))
+
+
+def run(
+    graph: nx.Graph,
+    *,
+    config: Config | None = None,
+    attributes: Mapping[str, Mapping[str, str]] | None = None,
+    group_by: str | None = None,
+    source: Mapping[str, Any] | None = None,
+    progress: Progress | None = None,
+) -> Result:
+    """Analyse ``graph``: two node2vec views, their groups, roles and agreement.
+
+    Parameters
+    ----------
+    graph : networkx.Graph or networkx.DiGraph
+        Node names are used as given (converted with ``str``). Edge attribute
+        ``weight`` is the tie strength (missing means 1). Directed graphs are read
+        as supplier -> customer for the dependents figure.
+    config : Config, optional
+        Parameters; the defaults of :class:`~roles.config.Config` when omitted.
+    attributes : mapping, optional
+        Node name -> {column: value}, copied into the node table.
+    group_by : str, optional
+        An attribute column holding formal groups (departments, tiers) to compare
+        with the communities found.
+    source : mapping, optional
+        What the graph was read from (``file``, ``sha256``, ``format``, ``counts``),
+        echoed in the summary.
+    progress : callable, optional
+        Called with each stage's name as it starts.
+
+    Returns
+    -------
+    Result
+
+    Examples
+    --------
+    >>> import networkx as nx
+    >>> from roles import run
+    >>> result = run(nx.karate_club_graph())   # doctest: +SKIP
+    >>> result.summary["communities"]           # doctest: +SKIP
+    2
+    """
+    from .embed import embed_views
+    from .measures import rank_bridges, rank_hubs, role_table
+
+    config = config or Config()
+    if graph.number_of_nodes() == 0:
+        raise InputError("the network has no nodes; give an edge list with at least one tie.")
+    if graph.number_of_edges() == 0:
+        raise InputError(
+            "the network has no ties between different members; nothing can be grouped. "
+            "Check that the edge list has rows below its header."
+        )
+    graph = nx.relabel_nodes(graph, {n: str(n) for n in graph}, copy=True)
+    seeds = stage_seeds(config.seed)
+    timer = _Timer(progress)
+    names = [str(n) for n in graph.nodes()]
+    n = len(names)
+
+    with timer.stage("graph"):
+        csr = to_csr(graph)
+        degree = csr.out_degree() + (np.bincount(csr.indices, minlength=n) if csr.directed else 0)
+        connected = np.asarray(degree > 0)
+        isolated = [names[i] for i in np.flatnonzero(~connected)]
+
+    with timer.stage("walks and embedding"):
+        embeddings = embed_views(csr, config)
+    vectors = {view: np.asarray(e.vectors) for view, e in embeddings.items()}
+
+    groupings: dict[str, Grouping] = {}
+    idx = np.flatnonzero(connected)
+    with timer.stage("clustering"):
+        for i, view in enumerate(("local", "far")):
+            groupings[view] = cluster(
+                vectors[view][idx],
+                min_cluster_size=config.cluster.min_cluster_size,
+                reduce_to=config.cluster.reduce_to,
+                seed=seeds[2 + i],
+            )
+
+    # Group labels per node: 1-based by size; 0 for members with no ties.
+    def full(labels: np.ndarray) -> np.ndarray:
+        out = np.zeros(n, dtype=np.int64)
+        out[idx] = labels + 1
+        return out
+
+    view_labels = {view: full(g.labels) for view, g in groupings.items()}
+    membership = np.zeros(n)
+    community_view = COMMUNITY_VIEW
+    if groupings[community_view].n_groups == 0 and groupings["local"].n_groups > 0:
+        community_view = "local"
+    membership[idx] = groupings[community_view].membership
+    communities = view_labels[community_view]
+    community_of = dict(zip(names, communities.tolist(), strict=True))
+
+    with timer.stage("roles and measures"):
+        table = role_table(graph, community_of, seed=seeds[4])
+
+    with timer.stage("comparison"):
+        comparison = None
+        overlap = np.full(n, np.nan)
+        if len(idx) >= 3:
+            comparison = compare_views(
+                vectors["local"][idx],
+                vectors["far"][idx],
+                groupings["local"].labels,
+                groupings["far"].labels,
+            )
+            overlap[idx] = comparison.overlap
+
+    with timer.stage("modularity check"):
+        louvain = _louvain(graph, seeds[5])
+        louvain_of = {node: i for i, part in enumerate(louvain) for node in part}
+        from sklearn.metrics import normalized_mutual_info_score
+
+        conn_names = [names[i] for i in idx]
+        louvain_nmi = float(
+            normalized_mutual_info_score(
+                [louvain_of[x] for x in conn_names], [community_of[x] for x in conn_names]
+            )
+        )
+        q_found = _modularity(graph, community_of)
+        q_louvain = _modularity(graph, louvain_of)
+
+    nodes = pd.DataFrame({"node": names})
+    nodes["community"] = communities
+    nodes["local_group"] = view_labels["local"]
+    nodes["far_group"] = view_labels["far"]
+    nodes["membership"] = np.round(membership, 4)
+    for col in (
+        "role",
+        "betweenness",
+        "participation",
+        "within_z",
+        "constraint",
+        "effective_size",
+        "dependents",
+        "region",
+    ):
+        nodes[col] = table.loc[names, col].to_numpy()
+    nodes.loc[~connected, "role"] = "no ties"
+    nodes["view_agreement"] = np.round(overlap, 4)
+    nodes["degree"] = degree
+    if attributes:
+        cols: list[str] = []
+        for attrs in attributes.values():
+            cols.extend(c for c in attrs if c not in cols)
+        for col in cols:
+            if col in nodes.columns:
+                continue
+            nodes[col] = [attributes.get(name, {}).get(col, "") for name in names]
+
+    extras: dict[str, Any] = {}
+    if group_by:
+        from .formal import brokerage, crosstab, ei_index, formal_nmi
+
+        if group_by not in nodes.columns:
+            raise InputError(
+                f"the nodes file has no column {group_by!r} to group by; "
+                "name one of its columns with --group-by."
+            )
+        groups = dict(zip(names, nodes[group_by].astype(str), strict=True))
+        with timer.stage("formal groups"):
+            brk = brokerage(graph, groups)
+            for col in brk.columns:
+                nodes[col] = brk.loc[names, col].to_numpy()
+            extras["formal"] = {
+                "attribute": group_by,
+                "nmi": formal_nmi(groups, community_of),
+                "ei_index": ei_index(graph, groups),
+                "crosstab": crosstab(groups, community_of),
+            }
+
+    bridges = rank_bridges(table)
+    hubs = rank_hubs(table)
+    n_comm = int(communities.max())
+    summary: dict[str, Any] = {
+        "nodes": n,
+        "edges": graph.number_of_edges(),
+        "directed": graph.is_directed(),
+        "isolated": {
+            "count": len(isolated),
+            "names": isolated[:50],
+            "treatment": "walks of length one; vectors not clustered; community 0, role 'no ties'",
+        },
+        "communities": n_comm,
+        "community_view": community_view,
+        "bridges": [str(b) for b in bridges],
+        "hubs": [str(h) for h in hubs],
+        "single_points_of_failure": [
+            {"node": str(r.node), "dependents": int(r.dependents)}
+            for r in nodes.sort_values("dependents", ascending=False).itertuples()
+            if r.dependents > 0
+        ][:50],
+        "views": {
+            "ari": comparison.ari if comparison else None,
+            "nmi": comparison.nmi if comparison else None,
+            "neighbours_compared": comparison.k if comparison else 0,
+            "groups": {v: g.n_groups for v, g in groupings.items()},
+            "noise_share": {v: round(g.noise_share, 4) for v, g in groupings.items()},
+            "contingency": comparison.contingency.tolist() if comparison else [],
+        },
+        "modularity": {
+            "communities": round(q_found, 4),
+            "louvain": round(q_louvain, 4),
+            "louvain_groups": len(louvain),
+            "nmi_with_louvain": round(louvain_nmi, 4),
+        },
+        "parameters": {**config.as_dict(), "directed": graph.is_directed()},
+        "input": dict(source or {}),
+        "versions": _versions(),
+        "timings": timer.timings,
+    }
+    if "formal" in extras:
+        f = extras["formal"]
+        summary["formal"] = {
+            "attribute": f["attribute"],
+            "nmi": round(f["nmi"], 4),
+            "ei_index": {k: round(v, 4) for k, v in f["ei_index"].items()},
+            "crosstab": {
+                str(k): {str(c): int(v) for c, v in row.items()}
+                for k, row in f["crosstab"].iterrows()
+            },
+        }
+    return Result(
+        nodes=nodes,
+        summary=summary,
+        graph=graph,
+        vectors=vectors,
+        groupings=groupings,
+        comparison=comparison,
+        extras=extras,
+    )

@@ -1,0 +1,35 @@
+"""Agreement of the two views."""
+
+import numpy as np
+from sklearn.metrics import adjusted_rand_score, normalized_mutual_info_score
+
+from roles.compare import compare_views, neighbour_overlap
+
+
+def test_identical_views_overlap_fully():
+    x = np.random.default_rng(0).normal(size=(50, 8))
+    assert np.allclose(neighbour_overlap(x, x, k=5), 1.0)
+
+
+def test_overlap_worked_by_hand():
+    # Points on a line: 0, 1, 2, 10 in view A; 0, 1, 10, 2 (2 and 3 swapped) in view B.
+    a = np.array([[0.0, 1.0], [1.0, 1.0], [2.0, 1.0], [10.0, 1.0]])
+    b = np.array([[0.0, 1.0], [1.0, 1.0], [10.0, 1.0], [2.0, 1.0]])
+    # Vectors are compared by direction (normalised), as cosine similarity does.
+    # Directions of a: angles atan(1/x) -> 90, 45, 26.6, 5.7 degrees; nearest by angle:
+    #   A: 0->1, 1->2, 2->1, 3->2.   B: 0->1, 1->3, 2->3, 3->1 (x=2 now sits at index 3).
+    # With k=1 the Jaccard index is 1 where the single neighbours match, else 0.
+    got = neighbour_overlap(a, b, k=1)
+    assert got.tolist() == [1.0, 0.0, 0.0, 0.0]
+
+
+def test_partition_scores_match_scikit_learn():
+    rng = np.random.default_rng(4)
+    x = rng.normal(size=(60, 4))
+    la, lb = rng.integers(0, 3, 60), rng.integers(0, 4, 60)
+    c = compare_views(x, x, la, lb, k=5)
+    # Reference values: scikit-learn's own implementations.
+    assert c.ari == adjusted_rand_score(la, lb)
+    assert c.nmi == normalized_mutual_info_score(la, lb)
+    assert c.contingency.sum() == 60 and c.contingency.shape == (3, 4)
+    assert c.k == 5

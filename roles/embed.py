@@ -1,0 +1,374 @@
+"""Walks -> vectors: skip-gram with negative sampling (gensim Word2Vec), two views.
+
+Each view (``local``: q > 1, ``far``: q < 1) is one node2vec run [1]_: second-order
+walks from :mod:`roles.walks`, then skip-gram with negative sampling [2]_ trained by
+gensim [3]_ with one worker thread, so the result depends on the seed only. The two
+views run side by side in two processes.
+
+Nodes are gensim "words" named by their index (``"0"``, ``"1"``, ...); the vector of
+node ``i`` is row ``i``. A node that never shares a walk with another node (an isolated
+node: its walks have length 1) gets no training signal; its row is zero and it is
+counted in :attr:`Embedding.n_untrained`.
+
+References
+----------
+.. [1] A. Grover and J. Leskovec, "node2vec: Scalable feature learning for networks",
+   KDD 2016. https://doi.org/10.1145/2939672.2939754
+.. [2] T. Mikolov, I. Sutskever, K. Chen, G. Corrado and J. Dean, "Distributed
+   representations of words and phrases and their compositionality", NeurIPS 2013.
+.. [3] R. Řehůřek and P. Sojka, "Software framework for topic modelling with large
+   corpora", LREC 2010 Workshop on New Challenges for NLP Frameworks.
+"""
+
+from __future__ import annotations
+
+import logging
+import multiprocessing
+import os
+import tempfile
+import zlib
+from collections.abc import Iterator
+from concurrent.futures import ProcessPoolExecutor
+from dataclasses import dataclass
+
+import numpy as np
+
+from .config import Config, EmbeddingConfig, ViewConfig, WalkConfig
+from .graph import CSRGraph
+from .walks import generate_walks, walk_lengths
+
+__all__ = ["Embedding", "embed_walks", "embed_views", "untrained_nodes", "FEEDS"]
+
+#: Ways of handing the walks to gensim; see ``benchmarks/bench_walks.py`` for the choice.
+FEEDS = ("corpus_file", "iterable")
+_DEFAULT_FEED = "corpus_file"
+
+# Below this many walk tokens per view, starting two processes costs more than it saves
+# (measured in benchmarks/bench_walks.py: a fresh process needs about 2 s to start).
+_PARALLEL_MIN_TOKENS = 2_000_000
+
+_log = logging.getLogger(__name__)
+
+
+@dataclass(frozen=True, eq=False)
+class Embedding:
+    """Vectors of one view and how they were made.
+
+    Attributes
+    ----------
+    view : str
+        ``"local"`` or ``"far"``.
+    names : tuple of str
+        ``names[i]`` is the node of row ``i``.
+    vectors : ndarray of float32, shape (n_nodes, dimensions)
+        Row ``i`` is node ``i``; zero for untrained nodes.
+    p, q : float
+        node2vec return and in-out parameters of the walks.
+    walk_seed, train_seed : int
+        Seeds of the walks and of gensim, derived from the run seed.
+    n_walks : int
+        Walks sampled (``walks_per_node`` per node).
+    walk_length : int
+        Nodes per walk, before any directed dead end.
+    n_steps : int
+        Moves made by all walks together.
+    n_stopped : int
+        Walks that ended early at a node without out-ties (directed networks) or
+        started at an isolated node.
+    n_isolated : int
+        Nodes without any tie (in or out).
+    untrained : ndarray of bool, shape (n_nodes,)
+        Nodes that shared no walk with another node: their row is zero.
+    walks : ndarray of int32 or None
+        The walks themselves, when kept (``keep_walks=True``).
+    """
+
+    view: str
+    names: tuple[str, ...]
+    vectors: np.ndarray
+    p: float
+    q: float
+    walk_seed: int
+    train_seed: int
+    n_walks: int
+    walk_length: int
+    n_steps: int
+    n_stopped: int
+    n_isolated: int
+    untrained: np.ndarray
+    walks: np.ndarray | None = None
+
+    @property
+    def n_untrained(self) -> int:
+        """Nodes whose row is zero because no walk gave them a neighbour."""
+        return int(self.untrained.sum())
+
+    @property
+    def dimensions(self) -> int:
+        return int(self.vectors.shape[1])
+
+
+def _stable_hash(text: str) -> int:
+    """String hash that does not depend on PYTHONHASHSEED (gensim's ``hashfxn``)."""
+    return zlib.crc32(text.encode("utf-8"))
+
+
+def untrained_nodes(walks: np.ndarray, n_nodes: int) -> np.ndarray:
+    """Nodes that appear in no walk of two or more nodes (boolean mask).
+
+    Skip-gram only moves a node's vector when the node has a context word, so these
+    rows carry no information; :func:`embed_walks` sets them to zero.
+    """
+    lengths = walk_lengths(walks)
+    used = walks[lengths >= 2]
+    counts = np.bincount(used[used >= 0].ravel(), minlength=n_nodes)
+    return counts[:n_nodes] == 0
+
+
+class _Walks:
+    """Restartable corpus of token lists; the token strings are made once."""
+
+    def __init__(self, walks: np.ndarray, lengths: np.ndarray, tokens: np.ndarray):
+        self._walks = walks
+        self._lengths = lengths
+        self._tokens = tokens
+
+    def __iter__(self) -> Iterator[list[str]]:
+        tokens = self._tokens
+        for row, k in zip(self._walks, self._lengths, strict=True):
+            yield tokens[row[:k]].tolist()
+
+
+def _write_corpus(path: str, walks: np.ndarray, lengths: np.ndarray, n_nodes: int) -> None:
+    """One walk per line, node indices separated by spaces (gensim's LineSentence)."""
+    tokens = np.array([str(i).encode("ascii") for i in range(n_nodes)], dtype=object)
+    with open(path, "wb", buffering=1 << 20) as fh:
+        step = 4096
+        for lo in range(0, walks.shape[0], step):
+            lines = [
+                b" ".join(tokens[row[:k]].tolist())
+                for row, k in zip(walks[lo : lo + step], lengths[lo : lo + step], strict=True)
+            ]
+            fh.write(b"\n".join(lines))
+            fh.write(b"\n")
+
+
+def embed_walks(
+    walks: np.ndarray,
+    n_nodes: int,
+    *,
+    dimensions: int,
+    window: int,
+    epochs: int,
+    negative: int,
+    seed: int,
+    feed: str = _DEFAULT_FEED,
+) -> np.ndarray:
+    """Train skip-gram with negative sampling on walks and return one vector per node.
+
+    Parameters
+    ----------
+    walks : ndarray of int32, shape (n_walks, walk_length)
+        Node indices, ``-1`` after a walk's end (as :func:`roles.walks.generate_walks`).
+    n_nodes : int
+        Number of nodes; the result has one row per node, in index order.
+    dimensions, window, epochs, negative : int
+        Vector size, context window, passes over the walks, negative samples.
+    seed : int
+        gensim's seed, 0 to 2**32 - 1.
+    feed : {"corpus_file", "iterable"}
+        How the walks reach gensim: a temporary text file read by gensim's compiled
+        reader, or a Python iterable of token lists. Both are deterministic.
+
+    Returns
+    -------
+    ndarray of float32, shape (n_nodes, dimensions)
+        Row ``i`` is the vector of node ``i``. Rows of nodes found by
+        :func:`untrained_nodes` are zero.
+
+    Notes
+    -----
+    gensim runs with ``sg=1``, ``workers=1``, ``min_count=1`` and a ``hashfxn`` that
+    ignores PYTHONHASHSEED, which together make the vectors a function of the walks
+    and the seed [1]_. Frequent nodes are down-sampled with gensim's default
+    ``sample=1e-3`` (Mikolov et al., NeurIPS 2013), common practice for node2vec.
+
+    References
+    ----------
+    .. [1] gensim documentation, ``gensim.models.word2vec.Word2Vec``: "for a fully
+       deterministically-reproducible run, you must also limit the model to a single
+       worker thread (workers=1) ... [and] use of the PYTHONHASHSEED environment
+       variable to control hash randomization".
+    """
+    from gensim.models import Word2Vec
+
+    if feed not in FEEDS:
+        raise ValueError(f"feed must be one of {FEEDS}; got {feed!r}")
+    if walks.ndim != 2:
+        raise ValueError(f"walks must be a 2-d array; got shape {walks.shape}")
+    vectors = np.zeros((n_nodes, dimensions), dtype=np.float32)
+    lengths = walk_lengths(walks)
+    keep = lengths >= 2  # a lone node has no context: nothing to learn from it
+    walks, lengths = walks[keep], lengths[keep]
+    if walks.shape[0] == 0:
+        return vectors
+    valid = walks[walks >= 0]
+    if valid.size and (int(valid.max()) >= n_nodes):
+        raise ValueError("walks refer to a node index >= n_nodes")
+    counts = np.bincount(valid, minlength=n_nodes)
+    present = np.flatnonzero(counts)
+    keys = [str(i) for i in present]
+    total_words = int(lengths.sum())
+    model = Word2Vec(
+        vector_size=dimensions,
+        window=window,
+        min_count=1,
+        sg=1,
+        hs=0,
+        negative=negative,
+        workers=1,
+        seed=int(seed),
+        hashfxn=_stable_hash,
+        epochs=epochs,
+    )
+    model.build_vocab_from_freq(
+        dict(zip(keys, counts[present].tolist(), strict=True)), corpus_count=int(walks.shape[0])
+    )
+    if feed == "iterable":
+        tokens = np.empty(n_nodes, dtype=object)
+        tokens[present] = keys
+        model.train(
+            _Walks(walks, lengths, tokens),
+            total_examples=int(walks.shape[0]),
+            total_words=total_words,
+            epochs=epochs,
+        )
+    else:
+        fd, path = tempfile.mkstemp(prefix="roles-walks-", suffix=".txt")
+        os.close(fd)
+        try:
+            _write_corpus(path, walks, lengths, n_nodes)
+            model.train(
+                corpus_file=path,
+                total_examples=int(walks.shape[0]),
+                total_words=total_words,
+                epochs=epochs,
+            )
+        finally:
+            os.unlink(path)
+    index = np.fromiter((model.wv.key_to_index[k] for k in keys), dtype=np.int64, count=len(keys))
+    vectors[present] = model.wv.vectors[index]
+    return vectors
+
+
+def _view_seeds(seed: int) -> dict[str, tuple[int, int]]:
+    """(walk seed, training seed) per view, one SeedSequence child per view."""
+    children = np.random.SeedSequence(seed).spawn(2)
+    out = {}
+    for name, child in zip(("local", "far"), children, strict=True):
+        walk_seed, train_seed = child.generate_state(2, dtype=np.uint32).tolist()
+        out[name] = (int(walk_seed), int(train_seed))
+    return out
+
+
+def _isolated(csr: CSRGraph) -> int:
+    out_deg = np.diff(csr.indptr)
+    in_deg = np.bincount(csr.indices, minlength=csr.n_nodes)
+    return int(np.count_nonzero((out_deg == 0) & (in_deg == 0)))
+
+
+def _embed_view(
+    csr: CSRGraph,
+    view: ViewConfig,
+    name: str,
+    walks_cfg: WalkConfig,
+    emb_cfg: EmbeddingConfig,
+    seeds: tuple[int, int],
+    keep_walks: bool,
+) -> Embedding:
+    walk_seed, train_seed = seeds
+    walks = generate_walks(
+        csr,
+        walks_per_node=walks_cfg.walks_per_node,
+        walk_length=walks_cfg.walk_length,
+        p=view.p,
+        q=view.q,
+        seed=walk_seed,
+    )
+    vectors = embed_walks(
+        walks,
+        csr.n_nodes,
+        dimensions=emb_cfg.dimensions,
+        window=emb_cfg.window,
+        epochs=emb_cfg.epochs,
+        negative=emb_cfg.negative,
+        seed=train_seed,
+    )
+    lengths = walk_lengths(walks)
+    return Embedding(
+        view=name,
+        names=csr.names,
+        vectors=vectors,
+        p=view.p,
+        q=view.q,
+        walk_seed=walk_seed,
+        train_seed=train_seed,
+        n_walks=int(walks.shape[0]),
+        walk_length=int(walks.shape[1]),
+        n_steps=int(np.maximum(lengths - 1, 0).sum()),
+        n_stopped=int(np.count_nonzero(lengths < walks.shape[1])),
+        n_isolated=_isolated(csr),
+        untrained=untrained_nodes(walks, csr.n_nodes),
+        walks=walks if keep_walks else None,
+    )
+
+
+def embed_views(
+    csr: CSRGraph,
+    config: Config,
+    *,
+    keep_walks: bool = False,
+    processes: int | None = None,
+) -> dict[str, Embedding]:
+    """Compute the ``local`` and ``far`` node2vec views of a network.
+
+    Parameters
+    ----------
+    csr : CSRGraph
+        The network.
+    config : Config
+        ``config.local`` / ``config.far`` give p and q, ``config.walks`` and
+        ``config.embedding`` the walk and skip-gram settings. Each view's seeds come
+        from its own child of ``numpy.random.SeedSequence(config.seed)``.
+    keep_walks : bool, default False
+        Keep each view's walks in :attr:`Embedding.walks`.
+    processes : int, optional
+        2 runs the views in two processes, 1 one after the other. By default two
+        processes are used unless the walks are small enough that starting a process
+        would cost more than it saves. The vectors are the same either way.
+
+    Returns
+    -------
+    dict
+        ``{"local": Embedding, "far": Embedding}``.
+
+    References
+    ----------
+    .. [1] A. Grover and J. Leskovec, "node2vec: Scalable feature learning for
+       networks", KDD 2016. https://doi.org/10.1145/2939672.2939754
+    """
+    seeds = _view_seeds(config.seed)
+    jobs = {
+        name: (csr, view, name, config.walks, config.embedding, seeds[name], keep_walks)
+        for name, view in config.views.items()
+    }
+    if processes is None:
+        tokens = csr.n_nodes * config.walks.walks_per_node * config.walks.walk_length
+        processes = 2 if tokens >= _PARALLEL_MIN_TOKENS and (os.cpu_count() or 1) > 1 else 1
+    if processes <= 1:
+        return {name: _embed_view(*args) for name, args in jobs.items()}
+    # numba and gensim threads do not survive fork() safely; start clean processes.
+    context = multiprocessing.get_context("spawn")
+    with ProcessPoolExecutor(max_workers=min(processes, len(jobs)), mp_context=context) as pool:
+        futures = {name: pool.submit(_embed_view, *args) for name, args in jobs.items()}
+        return {name: future.result() for name, future in futures.items()}

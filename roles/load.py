@@ -450,7 +450,13 @@ def _check_names(
     )
 
 
-def _width_problem(cells: int, width: int, delimiter: str) -> str:
+def _width_problem(cells: int, width: int, delimiter: str, first: int, last: int) -> str:
+    if last > first:
+        return (
+            f"this row runs from line {first} to line {last} and has {cells} cells where the "
+            f'header has {width}: a quote mark (") is probably left open in line {first}. '
+            'Close it, or write a quote inside a quoted value twice ("").'
+        )
     if cells < width:
         return (
             f"this row has {cells} cells but the header has {width}: a value is missing. "
@@ -543,7 +549,7 @@ def _load_delimited(
                     row = row[:width]
                 else:
                     raise InputError(
-                        _width_problem(len(row), width, delimiter), path=path, line=line
+                        _width_problem(len(row), width, delimiter, line, prev), path=path, line=line
                     )
             a = row[si]
             b = row[ti]

@@ -14,9 +14,10 @@ from roles.errors import ConfigError, InputError
 from roles.graph import to_csr
 from roles.walks import generate_walks, kernel, walk_lengths, walks_to_names
 
-# Local and far views of the default configuration (roles.config), plus two settings
-# with p != 1 that exercise the return branch and both sides of the envelope.
-VIEWS = [(1.0, 2.0), (1.0, 0.5), (0.5, 2.0), (4.0, 0.25)]
+# Local and far views of the default configuration (roles.config), plus settings with
+# p != 1: the return to t as the largest bias (drawn apart from the envelope, twice, with
+# envelopes 1 and 1/q) and as the smallest.
+VIEWS = [(1.0, 2.0), (1.0, 0.5), (0.5, 2.0), (0.25, 0.5), (4.0, 0.25)]
 
 
 def _weighted_triangles(directed: bool = False) -> nx.Graph:
@@ -173,7 +174,8 @@ def test_same_seed_same_walks_other_seed_other_walks() -> None:
 def test_walks_do_not_depend_on_chunking() -> None:
     csr = to_csr(nx.karate_club_graph())
     starts = np.arange(34, dtype=np.int32).repeat(3)
-    args = (csr.indptr, csr.indices, np.zeros(0, np.float32), np.zeros(0, np.int32), True)
+    f4, i4, f8 = np.zeros(0, np.float32), np.zeros(0, np.int32), np.zeros(0, np.float64)
+    args = (csr.indptr, csr.indices, csr.weights, f4, i4, f8, True, False)
     key = np.uint64(123456789)
     whole = np.empty((starts.size, 12), dtype=np.int32)
     kernel.walk_serial(*args, starts, 0, 2.0, 0.5, key, whole)
@@ -192,8 +194,9 @@ def test_alias_tables_reproduce_row_weights() -> None:
     indptr = np.array([0, 1, 10, 10, 57], dtype=np.int64)
     prob = np.empty(57, np.float32)
     alias = np.empty(57, np.int32)
+    totals = np.empty(4, np.float64)
     scratch = (np.empty(47, np.float64), np.empty(47, np.int32), np.empty(47, np.int32))
-    kernel.build_alias(indptr, weights, prob, alias, *scratch)
+    kernel.build_alias(indptr, weights, prob, alias, totals, *scratch)
     for r in range(4):
         s, e = indptr[r], indptr[r + 1]
         d = e - s
@@ -205,6 +208,7 @@ def test_alias_tables_reproduce_row_weights() -> None:
             implied[alias[s + j]] += (1.0 - prob[s + j]) / d
         expected = weights[s:e] / weights[s:e].sum()
         np.testing.assert_allclose(implied, expected, rtol=1e-5, atol=1e-7)
+        assert totals[r] == pytest.approx(float(weights[s:e].sum(dtype=np.float64)))
 
 
 def test_star_hub_memory_is_proportional_to_edges() -> None:

@@ -40,8 +40,8 @@ def _check_count(name: str, value: int, low: int) -> int:
     return int(value)
 
 
-def _sampling_tables(csr: CSRGraph) -> tuple[bool, np.ndarray, np.ndarray]:
-    """Alias tables for weighted graphs; nothing (uniform draws) when all weights agree."""
+def _sampling_tables(csr: CSRGraph) -> tuple[bool, np.ndarray, np.ndarray, np.ndarray]:
+    """Alias tables and row totals; none (uniform draws) when all weights are equal."""
     w = csr.weights
     if w.size and not (np.all(np.isfinite(w)) and float(w.min()) > 0.0):
         raise InputError(
@@ -49,19 +49,19 @@ def _sampling_tables(csr: CSRGraph) -> tuple[bool, np.ndarray, np.ndarray]:
             "weight. Remove those ties or give them a positive weight."
         )
     if w.size == 0 or bool(np.all(w == w[0])):
-        empty_f = np.zeros(0, dtype=np.float32)
-        empty_i = np.zeros(0, dtype=np.int32)
-        return True, empty_f, empty_i
+        none_f = np.zeros(0, dtype=np.float32)
+        return True, none_f, np.zeros(0, dtype=np.int32), np.zeros(0, dtype=np.float64)
     longest = int(np.diff(csr.indptr).max())
     prob = np.empty(w.size, dtype=np.float32)
     alias = np.empty(w.size, dtype=np.int32)
+    row_weight = np.empty(csr.n_nodes, dtype=np.float64)
     work = np.empty(longest, dtype=np.float64)
     small = np.empty(longest, dtype=np.int32)
     large = np.empty(longest, dtype=np.int32)
     _kernel.build_alias(
-        csr.indptr, w.astype(np.float32, copy=False), prob, alias, work, small, large
+        csr.indptr, w.astype(np.float32, copy=False), prob, alias, row_weight, work, small, large
     )
-    return False, prob, alias
+    return False, prob, alias, row_weight
 
 
 def generate_walks(
@@ -139,7 +139,7 @@ def generate_walks(
     length = _check_count("walk_length", walk_length, 1)
     seed = _check_count("seed", seed, 0)
     n = csr.n_nodes
-    uniform, prob, alias = _sampling_tables(csr)
+    uniform, prob, alias, row_weight = _sampling_tables(csr)
     sequence = np.random.SeedSequence(seed)
     key = sequence.generate_state(1, dtype=np.uint64)[0]
     order_rng = np.random.default_rng(sequence.spawn(1)[0])
@@ -153,9 +153,12 @@ def generate_walks(
     walk(
         csr.indptr.astype(np.int64, copy=False),
         csr.indices.astype(np.int32, copy=False),
+        csr.weights.astype(np.float32, copy=False),
         prob,
         alias,
+        row_weight,
         uniform,
+        bool(csr.directed),
         starts,
         0,
         inv_p,

@@ -76,20 +76,20 @@ def _below(state, d):  # pragma: no cover - compiled
 
 
 @njit(cache=True)
-def _propose(state, indices, prob, alias, uniform, start, degree):  # pragma: no cover
-    """Draw a neighbour of a row in proportion to weight; also return a uniform in [0, 1)."""
+def _propose(state, prob, alias, uniform, start, degree):  # pragma: no cover - compiled
+    """Draw an arc of a row in proportion to weight; also return a uniform in [0, 1)."""
     state, j, spare = _below(state, np.uint64(degree))
     if uniform:
-        return state, indices[start + j], spare * _INV32
+        return state, start + j, spare * _INV32
     if spare * _INV32 >= prob[start + j]:
         j = alias[start + j]
     state, z = _next(state)
-    return state, indices[start + j], (z >> _S11) * _INV53
+    return state, start + j, (z >> _S11) * _INV53
 
 
 @njit(cache=True)
-def _has_arc(indices, lo, hi, x):  # pragma: no cover - compiled
-    """Whether ``x`` is in the sorted slice ``indices[lo:hi]`` (binary search)."""
+def _find(indices, lo, hi, x):  # pragma: no cover - compiled
+    """Position of ``x`` in the sorted slice ``indices[lo:hi]``, or -1 (binary search)."""
     while lo < hi:
         mid = (lo + hi) >> 1
         y = indices[mid]
@@ -98,13 +98,26 @@ def _has_arc(indices, lo, hi, x):  # pragma: no cover - compiled
         elif y > x:
             hi = mid
         else:
-            return True
-    return False
+            return mid
+    return -1
 
 
 @njit(cache=True)
 def _one_walk(
-    indptr, indices, prob, alias, uniform, node, inv_p, inv_q, key, walk_id, row
+    indptr,
+    indices,
+    weights,
+    prob,
+    alias,
+    row_weight,
+    uniform,
+    directed,
+    node,
+    inv_p,
+    inv_q,
+    key,
+    walk_id,
+    row,
 ):  # pragma: no cover - compiled
     length = row.shape[0]
     state = _mix(key ^ _mix(np.uint64(walk_id)))
@@ -116,12 +129,22 @@ def _one_walk(
             row[i] = -1
         return
     # First step: in proportion to weight.
-    state, x, u = _propose(state, indices, prob, alias, uniform, s, d)
-    row[1] = x
-    envelope = max(inv_p, 1.0, inv_q)
-    floor = min(inv_p, 1.0, inv_q)
+    state, pos, u = _propose(state, prob, alias, uniform, s, d)
+    row[1] = indices[pos]
+    # When 1/p is the largest bias, the return to t is handled as an "outlier" [2]:
+    # the envelope drops to max(1, 1/q) and the mass of the return above it is drawn
+    # directly, so far fewer candidates are rejected. Otherwise the envelope is
+    # max(1/p, 1, 1/q).
+    outlier = inv_p > max(1.0, inv_q)
+    if outlier:
+        envelope = max(1.0, inv_q)
+        floor = min(1.0, inv_q)
+    else:
+        envelope = max(inv_p, 1.0, inv_q)
+        floor = min(inv_p, 1.0, inv_q)
+    back_weight = 1.0 if uniform else np.float64(weights[pos])  # w(v, t) when undirected
     t = node
-    v = x
+    v = indices[pos]
     for i in range(2, length):
         s = indptr[v]
         d = indptr[v + 1] - s
@@ -129,19 +152,37 @@ def _one_walk(
             for k in range(i, length):
                 row[k] = -1
             return
+        cut = 0.0
+        if outlier:
+            if directed:  # is there a tie v -> t to return along?
+                back = _find(indices, s, s + d, t)
+                back_weight = 0.0 if back < 0 else (1.0 if uniform else np.float64(weights[back]))
+            extra = back_weight * (inv_p - envelope)
+            total = (np.float64(d) if uniform else row_weight[v]) * envelope + extra
+            cut = extra / total
         while True:
-            state, x, u = _propose(state, indices, prob, alias, uniform, s, d)
+            if outlier:
+                state, z = _next(state)
+                if (z >> _S11) * _INV53 < cut:  # the return's mass above the envelope
+                    x = t
+                    break
+            state, pos, u = _propose(state, prob, alias, uniform, s, d)
+            x = indices[pos]
             bar = u * envelope
             if bar < floor:  # accepted whatever a(t, x) is: skip the adjacency test
                 break
             if x == t:
+                if outlier:  # a(t, t) = 1/p is at least the envelope here
+                    break
                 a = inv_p
-            elif _has_arc(indices, indptr[t], indptr[t + 1], x):
+            elif _find(indices, indptr[t], indptr[t + 1], x) >= 0:
                 a = 1.0
             else:
                 a = inv_q
             if bar < a:
                 break
+        if not uniform and not (outlier and x == t):
+            back_weight = np.float64(weights[pos])
         row[i] = x
         t = v
         v = x
@@ -149,18 +190,34 @@ def _one_walk(
 
 @njit(cache=True)
 def walk_serial(
-    indptr, indices, prob, alias, uniform, starts, first_id, inv_p, inv_q, key, out
+    indptr,
+    indices,
+    weights,
+    prob,
+    alias,
+    row_weight,
+    uniform,
+    directed,
+    starts,
+    first_id,
+    inv_p,
+    inv_q,
+    key,
+    out,
 ):  # pragma: no cover - compiled
     """Fill ``out[k]`` with walk number ``first_id + k`` from ``starts[k]``; one thread.
 
     Parameters
     ----------
-    indptr, indices : int64 and int32 arrays
+    indptr, indices, weights : int64, int32 and float32 arrays
         CSR rows, each sorted by neighbour index.
-    prob, alias : float32 and int32 arrays aligned with ``indices``
-        Per-row alias tables from :func:`build_alias` (ignored when ``uniform``).
+    prob, alias, row_weight : float32, int32 and float64 arrays
+        Per-row alias tables aligned with ``indices`` and row weight totals, from
+        :func:`build_alias` (all ignored when ``uniform``).
     uniform : bool
         All tie weights are equal: draw neighbours uniformly, no alias tables.
+    directed : bool
+        Rows hold out-ties only, so a tie back to ``t`` has to be looked up.
     starts : int32 array
         Start node of each walk.
     first_id : int
@@ -176,9 +233,12 @@ def walk_serial(
         _one_walk(
             indptr,
             indices,
+            weights,
             prob,
             alias,
+            row_weight,
             uniform,
+            directed,
             starts[k],
             inv_p,
             inv_q,
@@ -191,16 +251,32 @@ def walk_serial(
 
 @njit(cache=True, parallel=True)
 def walk_parallel(
-    indptr, indices, prob, alias, uniform, starts, first_id, inv_p, inv_q, key, out
+    indptr,
+    indices,
+    weights,
+    prob,
+    alias,
+    row_weight,
+    uniform,
+    directed,
+    starts,
+    first_id,
+    inv_p,
+    inv_q,
+    key,
+    out,
 ):  # pragma: no cover - compiled
     """As :func:`walk_serial`, walks spread over numba's threads; same output."""
     for k in prange(starts.shape[0]):
         _one_walk(
             indptr,
             indices,
+            weights,
             prob,
             alias,
+            row_weight,
             uniform,
+            directed,
             starts[k],
             inv_p,
             inv_q,
@@ -212,7 +288,7 @@ def walk_parallel(
 
 
 @njit(cache=True)
-def build_alias(indptr, weights, prob, alias, work, small, large):  # pragma: no cover
+def build_alias(indptr, weights, prob, alias, row_weight, work, small, large):  # pragma: no cover
     """Fill per-row alias tables (Vose's method [3]) in place.
 
     Parameters
@@ -224,6 +300,8 @@ def build_alias(indptr, weights, prob, alias, work, small, large):  # pragma: no
     prob, alias : float32 and int32 arrays, same length as ``weights``
         Output: column ``j`` of a row is kept with probability ``prob[j]``, otherwise
         replaced by column ``alias[j]`` (both relative to the row start).
+    row_weight : float64 array, one entry per row
+        Output: total weight of each row.
     work : float64 array; small, large : int32 arrays
         Scratch space, each at least as long as the longest row.
     """
@@ -231,11 +309,13 @@ def build_alias(indptr, weights, prob, alias, work, small, large):  # pragma: no
     for r in range(n):
         s = indptr[r]
         d = indptr[r + 1] - s
+        row_weight[r] = 0.0
         if d == 0:
             continue
         total = 0.0
         for j in range(d):
             total += weights[s + j]
+        row_weight[r] = total
         ns = 0
         nl = 0
         for j in range(d):

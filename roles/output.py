@@ -108,7 +108,7 @@ def write_csv(
     header: Sequence[Any],
     rows: Iterable[Sequence[Any]],
     *,
-    excel_bom: bool = True,
+    excel_bom: bool = False,
 ) -> None:
     """Write a CSV file (RFC 4180 quoting) whose every cell went through :func:`safe_cell`.
 
@@ -121,9 +121,10 @@ def write_csv(
     rows : iterable of sequences
         One sequence per row, as long as ``header``.
     excel_bom : bool
-        Start the file with a UTF-8 byte-order mark, which spreadsheet programs need to
-        show non-ASCII names correctly (pandas and :func:`roles.load.load_edges` read
-        it fine; the :mod:`csv` module needs ``encoding='utf-8-sig'``).
+        Start the file with a UTF-8 byte-order mark. Excel needs it to show non-ASCII
+        names correctly when the file is opened by double-click; pandas and
+        :func:`roles.load.load_edges` read it fine, but a reader using the :mod:`csv`
+        module with ``encoding='utf-8'`` then sees it in the first column name.
 
     Raises
     ------

@@ -205,7 +205,10 @@ def _read_bytes(p: Path, cap: int, label: str) -> bytes:
                 path=str(p),
             )
         with open(p, "rb") as fh:
-            data = fh.read(cap + 1)
+            # Read what stat reported plus one byte: never allocate the whole cap.
+            data = fh.read(min(size, cap) + 1)
+            if len(data) > size:  # the file grew since: read the rest, up to the cap
+                data += fh.read(cap + 1 - len(data))
     except OSError as exc:
         raise InputError(
             f"the file cannot be read ({exc.strerror or exc}). Check that it exists and "

@@ -1,0 +1,60 @@
+"""Time roles.load.load_edges on large invented edge lists and print a table.
+
+Usage: python benchmarks/bench_load.py [ROWS ...]   (default: 100000 1000000)
+
+Each file has a header, random ties between ROWS // 5 made-up node names and a weight
+column; one row in ten repeats an earlier tie, reversed, so that it is merged.
+"""
+
+from __future__ import annotations
+
+import random
+import sys
+import tempfile
+import time
+import tracemalloc
+from pathlib import Path
+
+sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
+
+from roles.load import load_edges  # noqa: E402
+
+
+def make_file(folder: Path, rows: int, seed: int = 7) -> Path:
+    rng = random.Random(seed)
+    n = max(2, rows // 5)
+    path = folder / f"edges_{rows}.csv"
+    with open(path, "w", encoding="utf-8", newline="") as fh:
+        fh.write("source,target,weight\n")
+        earlier: list[tuple[int, int]] = []
+        for i in range(rows):
+            if i % 10 == 9:
+                b, a = earlier[rng.randrange(len(earlier))]
+            else:
+                a, b = rng.randrange(n), rng.randrange(n)
+                earlier.append((a, b))
+            fh.write(f"member-{a:07d},member-{b:07d},{rng.randint(1, 9)}\n")
+    return path
+
+
+def main(sizes: list[int]) -> None:
+    print(f"{'rows':>10} {'MB':>7} {'seconds':>8} {'rows/s':>10} {'peak MB':>8} "
+          f"{'nodes':>8} {'edges':>9} {'merged':>7} {'loops':>6}")
+    with tempfile.TemporaryDirectory() as tmp:
+        for rows in sizes:
+            path = make_file(Path(tmp), rows)
+            start = time.perf_counter()
+            net = load_edges(path)
+            seconds = time.perf_counter() - start
+            tracemalloc.start()
+            load_edges(path)
+            peak = tracemalloc.get_traced_memory()[1] / 1e6
+            tracemalloc.stop()
+            c = net.counts
+            print(f"{rows:>10} {path.stat().st_size / 1e6:>7.1f} {seconds:>8.2f} "
+                  f"{rows / seconds:>10.0f} {peak:>8.0f} {c['nodes']:>8} {c['edges']:>9} "
+                  f"{c['duplicate_edges_merged']:>7} {c['self_loops_dropped']:>6}")
+
+
+if __name__ == "__main__":
+    main([int(a) for a in sys.argv[1:]] or [100_000, 1_000_000])

@@ -1,0 +1,376 @@
+"""Role measures checked against outside references.
+
+References used below:
+- bctpy (Brain Connectivity Toolbox for Python; Rubinov & Sporns, NeuroImage 2010):
+  ``participation_coef`` and ``module_degree_zscore``.
+- networkx: ``betweenness_centrality``, ``constraint``, ``effective_size``.
+- Brute-force removal counts (remove the node, search again) for dependents.
+- Zachary's karate club (Zachary 1977), bundled with networkx.
+- Region bounds: Guimera & Amaral, Nature 433:895 (2005).
+"""
+
+from __future__ import annotations
+
+import math
+
+import bct
+import networkx as nx
+import numpy as np
+import pytest
+
+from roles.errors import InputError
+from roles.measures import (
+    EXACT_LIMIT,
+    betweenness,
+    dependents,
+    participation_coefficient,
+    rank_bridges,
+    rank_hubs,
+    role_region,
+    role_table,
+    structural_holes,
+    within_module_z,
+)
+
+SEEDS = [0, 1, 2, 3, 4]
+
+
+def _les_mis():
+    # Knuth (1993) co-appearance network, weighted; partition fixed by networkx's
+    # deterministic greedy modularity communities.
+    G = nx.les_miserables_graph()
+    parts = nx.community.greedy_modularity_communities(G, weight="weight")
+    return G, {v: i for i, part in enumerate(parts) for v in part}
+
+
+def _random_weighted_digraph(seed: int, n: int = 60, m: int = 220) -> nx.DiGraph:
+    rng = np.random.default_rng(seed)
+    G = nx.gnm_random_graph(n, m, directed=True, seed=seed)
+    for u, v in G.edges():
+        G[u][v]["weight"] = float(rng.integers(1, 6))
+    return G
+
+
+def _as_array(values: dict, nodes: list) -> np.ndarray:
+    return np.array([values[v] for v in nodes])
+
+
+# ------------------------------------------------------------------- P and z vs bctpy
+
+
+@pytest.mark.filterwarnings("ignore:invalid value encountered:RuntimeWarning")  # bctpy's 0/0
+@pytest.mark.parametrize("weight", ["weight", None])
+def test_participation_and_z_match_bctpy_undirected(weight):
+    G, comm = _les_mis()
+    nodes = list(G)
+    W = nx.to_numpy_array(G, nodelist=nodes, weight=weight)
+    ci = np.array([comm[v] for v in nodes])
+    # Expected values: bctpy participation_coef / module_degree_zscore (flag 0).
+    np.testing.assert_allclose(
+        _as_array(participation_coefficient(G, comm, weight=weight), nodes),
+        bct.participation_coef(W, ci),
+        atol=1e-12,
+    )
+    np.testing.assert_allclose(
+        _as_array(within_module_z(G, comm, weight=weight), nodes),
+        bct.module_degree_zscore(W, ci, flag=0),
+        atol=1e-12,
+    )
+
+
+@pytest.mark.parametrize("seed", SEEDS[:3])
+def test_participation_and_z_match_bctpy_directed_total_degree(seed):
+    G = _random_weighted_digraph(seed)
+    nodes = list(G)
+    comm = {v: v % 4 for v in nodes}
+    W = nx.to_numpy_array(G, nodelist=nodes, weight="weight")
+    ci = np.array([comm[v] for v in nodes])
+    # Our directed convention is total degree (in + out): bctpy on W + W.T, and
+    # module_degree_zscore flag=3 ("directed graph in and out degree").
+    np.testing.assert_allclose(
+        _as_array(participation_coefficient(G, comm), nodes),
+        bct.participation_coef(W + W.T, ci),
+        atol=1e-12,
+    )
+    np.testing.assert_allclose(
+        _as_array(within_module_z(G, comm), nodes),
+        bct.module_degree_zscore(W, ci, flag=3),
+        atol=1e-12,
+    )
+
+
+def test_participation_hand_values():
+    # From the definition P = 1 - sum_s (k_is / k_i)^2 (Guimera & Amaral 2005):
+    # the centre of a star with two leaves in each of two other communities has
+    # P = 1 - (2/4)^2 - (2/4)^2 = 0.5; a leaf has P = 0.
+    G = nx.star_graph(4)
+    comm = {0: "c", 1: "a", 2: "a", 3: "b", 4: "b"}
+    P = participation_coefficient(G, comm)
+    assert P[0] == pytest.approx(0.5)
+    assert P[1] == 0.0
+    # An isolated node has P = 0 (bctpy's convention for nodes without ties).
+    G.add_node(9)
+    comm[9] = "a"
+    assert participation_coefficient(G, comm)[9] == 0.0
+
+
+def test_missing_community_and_bad_weight_are_refused():
+    G = nx.path_graph(3)
+    with pytest.raises(InputError, match="no community"):
+        participation_coefficient(G, {0: 0, 1: 0})
+    G[0][1]["weight"] = -2.0
+    with pytest.raises(InputError, match="positive"):
+        within_module_z(G, dict.fromkeys(G, 0))
+
+
+# ------------------------------------------------------------------------ regions
+
+
+@pytest.mark.parametrize(
+    ("z", "P", "region"),
+    [
+        # Bounds of Guimera & Amaral (2005); ours are inclusive upper bounds.
+        (2.4999, 0.0, "R1"),
+        (2.4999, 0.05, "R1"),
+        (2.4999, 0.0501, "R2"),
+        (-1.0, 0.62, "R2"),
+        (0.0, 0.6201, "R3"),
+        (0.0, 0.80, "R3"),
+        (0.0, 0.8001, "R4"),
+        (2.5, 0.0, "R5"),
+        (2.5, 0.30, "R5"),
+        (2.5, 0.3001, "R6"),
+        (7.0, 0.75, "R6"),
+        (2.5, 0.7501, "R7"),
+        (2.5, 1.0, "R7"),
+    ],
+)
+def test_role_region_boundaries(z, P, region):
+    assert role_region(z, P) == region
+
+
+def test_role_region_tolerates_rounding_at_a_bound():
+    # 1 - 0.95 is 0.05000000000000004 in floating point; still on the bound.
+    assert role_region(0.0, 1 - 0.95) == "R1"
+    with pytest.raises(ValueError):
+        role_region(float("nan"), 0.1)
+
+
+# -------------------------------------------------------------------- betweenness
+
+
+@pytest.mark.parametrize("directed", [False, True])
+def test_betweenness_exact_matches_networkx(directed):
+    G = nx.gnm_random_graph(80, 240, directed=directed, seed=7)
+    values, info = betweenness(G, exact_limit=EXACT_LIMIT, seed=0)
+    expected = nx.betweenness_centrality(G)  # reference: networkx, normalized=True
+    assert info.method == "exact" and info.k == 80 and info.expected_error == 0.0
+    for v in G:
+        assert values[v] == pytest.approx(expected[v], abs=1e-12)
+
+
+def test_betweenness_weighted_uses_inverse_weight_as_distance():
+    G, _ = _les_mis()
+    values, info = betweenness(G, exact_limit=EXACT_LIMIT, seed=0)
+    # Reference: networkx with distance = 1 / weight (bigger weight = closer tie).
+    expected = nx.betweenness_centrality(G, weight=lambda u, v, d: 1.0 / d["weight"])
+    assert info.weighted
+    for v in G:
+        assert values[v] == pytest.approx(expected[v], abs=1e-12)
+    # With weight=None the step-count betweenness of networkx comes back.
+    unweighted, info = betweenness(G, exact_limit=EXACT_LIMIT, seed=0, weight=None)
+    plain = nx.betweenness_centrality(G)
+    assert not info.weighted
+    assert all(unweighted[v] == pytest.approx(plain[v], abs=1e-12) for v in G)
+
+
+def test_betweenness_sampled_estimate_within_its_stated_error():
+    G = nx.barabasi_albert_graph(400, 3, seed=5)
+    exact = nx.betweenness_centrality(G)  # reference: networkx exact
+    values, info = betweenness(G, exact_limit=100, seed=3, samples=200)
+    assert info.method == "sampled" and info.k == 200 and info.batches == 10
+    assert info.expected_error > 0
+    assert info.error_bound == pytest.approx(math.sqrt(math.log(40) / 400))
+    err = np.array([values[v] - exact[v] for v in G])
+    # Hoeffding's 95% half-width is a bound for each node; allow the few % of nodes
+    # that may exceed it, and no node beyond four times the batch standard error.
+    assert np.mean(np.abs(err) > info.error_bound) <= 0.05
+    assert np.abs(err).max() <= 4 * info.expected_error
+    # Same seed, same estimate.
+    again, _ = betweenness(G, exact_limit=100, seed=3, samples=200)
+    assert again == values
+
+
+# --------------------------------------------------------------- structural holes
+
+
+@pytest.mark.parametrize(
+    ("graph", "weight"),
+    [
+        ("les_mis", "weight"),
+        ("les_mis", None),
+        ("digraph", "weight"),
+        ("digraph", None),
+        ("karate", None),
+    ],
+)
+def test_structural_holes_match_networkx(graph, weight):
+    if graph == "les_mis":
+        G, _ = _les_mis()
+    elif graph == "digraph":
+        G = _random_weighted_digraph(11)
+    else:
+        G = nx.karate_club_graph()
+    G.add_node("alone")
+    constraint, esize = structural_holes(G, weight=weight)
+    # Reference: networkx constraint (all nodes) and effective_size computed node by
+    # node (nodes=list(G)). networkx 3.6's all-nodes effective_size normalises by the
+    # column maximum instead of the row maximum for weighted or directed graphs
+    # (networkx pull request #8906), so its per-node path is the reference here.
+    nx_c = nx.constraint(G, weight=weight)
+    nx_e = nx.effective_size(G, nodes=list(G), weight=weight)
+    if G.is_directed():
+        # The per-node path calls a node with in-ties only "isolated" (it looks at
+        # successors; networkx issue #2661). Mutual weights do not depend on direction,
+        # so such nodes are checked on the reversed graph.
+        back = nx.effective_size(G.reverse(), nodes=list(G), weight=weight)
+        nx_e = {v: back[v] if math.isnan(nx_e[v]) else nx_e[v] for v in G}
+    for v in G:
+        if v == "alone":
+            assert math.isnan(constraint[v]) and math.isnan(esize[v])
+            continue
+        assert constraint[v] == pytest.approx(nx_c[v], abs=1e-12)
+        assert esize[v] == pytest.approx(nx_e[v], abs=1e-12)
+
+
+def test_structural_holes_of_a_hub_with_many_leaves():
+    # Burt (1992): a star centre with n unconnected contacts has effective size n and
+    # constraint n * (1/n)^2 = 1/n; each leaf has constraint 1 and effective size 1.
+    G = nx.star_graph(500)
+    constraint, esize = structural_holes(G)
+    assert constraint[0] == pytest.approx(1 / 500)
+    assert esize[0] == pytest.approx(500)
+    assert constraint[1] == pytest.approx(1.0) and esize[1] == pytest.approx(1.0)
+
+
+# --------------------------------------------------------------------- dependents
+
+
+def _brute_directed(G: nx.DiGraph) -> dict:
+    # Origins: every node of a strongly connected group that nothing outside supplies
+    # (for acyclic parts these are the nodes without suppliers).
+    cond = nx.condensation(G)
+    origins = {v for c in cond if cond.in_degree(c) == 0 for v in cond.nodes[c]["members"]}
+
+    def reached(H, starts):
+        seen = set()
+        for s in starts:
+            if s in H and s not in seen:
+                seen |= {s} | nx.descendants(H, s)
+        return seen
+
+    before = reached(G, origins)
+    out = {}
+    for v in G:
+        H = G.copy()
+        H.remove_node(v)
+        out[v] = len(before - {v} - reached(H, origins - {v}))
+    return out
+
+
+def _brute_undirected(G: nx.Graph) -> dict:
+    out = {}
+    for v in G:
+        comp = nx.node_connected_component(G, v)
+        H = G.subgraph(comp - {v})
+        largest = max((len(c) for c in nx.connected_components(H)), default=0)
+        out[v] = len(comp) - 1 - largest
+    return out
+
+
+@pytest.mark.parametrize("seed", SEEDS)
+def test_dependents_directed_acyclic_matches_removal(seed):
+    # Supply web without cycles: ties from lower to higher index, so every node is
+    # reachable from a node without suppliers (the definition of issue 4 applies).
+    rng = np.random.default_rng(seed)
+    G = nx.DiGraph()
+    G.add_nodes_from(range(50))
+    for v in range(1, 50):
+        for u in rng.choice(v, size=min(v, int(rng.integers(1, 3))), replace=False):
+            G.add_edge(int(u), v)
+    assert dependents(G) == _brute_directed(G)
+
+
+@pytest.mark.parametrize("seed", SEEDS)
+def test_dependents_directed_with_cycles_matches_removal(seed):
+    G = nx.gnm_random_graph(45, 70, directed=True, seed=seed)
+    G.add_edges_from([(100, 101), (101, 102), (102, 100), (102, 103)])  # sourceless cycle
+    result = dependents(G)
+    assert result == _brute_directed(G)
+    assert result[102] == 1  # 103 hangs below the cycle by 102 alone
+
+
+@pytest.mark.parametrize("seed", SEEDS)
+def test_dependents_undirected_matches_removal(seed):
+    G = nx.gnm_random_graph(60, 75, seed=seed)  # sparse: many cut vertices
+    G.add_edge(200, 200)  # a self-loop changes nothing
+    assert dependents(G) == _brute_undirected(G)
+
+
+def test_dependents_small_worked_examples():
+    # Path 0-1-2-3-4: removing 2 leaves two pieces of 2, so 2 nodes fall outside the
+    # largest; removing 1 cuts off node 0.
+    assert dependents(nx.path_graph(5)) == {0: 0, 1: 1, 2: 2, 3: 1, 4: 0}
+    # Supplier s feeds a and b; both feed c: s dominates all three, a and b nobody.
+    G = nx.DiGraph([("s", "a"), ("s", "b"), ("a", "c"), ("b", "c")])
+    assert dependents(G) == {"s": 3, "a": 0, "b": 0, "c": 0}
+
+
+# --------------------------------------------------------------------- role table
+
+
+@pytest.mark.parametrize("weight", ["weight", None])
+def test_karate_faction_leaders_lead_the_hub_list(weight):
+    # Zachary (1977): members 0 and 33 led the two factions recorded in `club`.
+    G = nx.karate_club_graph()
+    club = {v: G.nodes[v]["club"] for v in G}
+    table = role_table(G, club, weight=weight)
+    assert list(table.columns) == [
+        "betweenness",
+        "participation",
+        "within_z",
+        "constraint",
+        "effective_size",
+        "dependents",
+        "region",
+        "role",
+    ]
+    assert set(rank_hubs(table)[:2]) == {0, 33}
+    assert table.attrs["betweenness"].method == "exact"
+
+
+def test_bridge_needs_ties_outside_its_community():
+    # Two five-cliques joined through node 10; node 4 (clique A) carries every path
+    # to the other side but all its ties stay inside community A (P = 0).
+    G = nx.complete_graph(5)
+    G.add_edges_from(nx.complete_graph(range(5, 10)).edges())
+    G.add_edges_from([(4, 10), (10, 5)])
+    comm = {v: "A" if v < 5 or v == 10 else "B" for v in G}
+    table = role_table(G, comm)
+    b = nx.betweenness_centrality(G)  # reference for "high betweenness": networkx
+    assert b[4] >= b[5] > 0
+    assert table.loc[4, "participation"] == 0.0
+    assert table.loc[4, "role"] != "bridge-like"
+    # 10 (ties 1 A + 1 B, P = 0.5) and 5 (4 B + 1 A, P = 1 - 0.8^2 - 0.2^2 = 0.32)
+    # pass the P > 0.30 test and are in the top decile of betweenness.
+    assert rank_bridges(table) == [10, 5]
+    assert rank_bridges(table, top=1) == [10]
+
+
+def test_role_labels_for_isolated_and_single_tie_nodes():
+    G = nx.path_graph(3)
+    G.add_node(9)
+    table = role_table(G, dict.fromkeys(G, 0))
+    assert table.loc[9, "role"] == "isolated"
+    assert table.loc[0, "role"] == "peripheral"
+    assert table.loc[1, "dependents"] == 1

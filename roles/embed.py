@@ -35,7 +35,7 @@ import numpy as np
 
 from .config import Config, EmbeddingConfig, ViewConfig, WalkConfig
 from .graph import CSRGraph
-from .walks import generate_walks, walk_lengths
+from .walks import generate_walks, visit_counts, walk_lengths
 
 __all__ = ["Embedding", "embed_walks", "embed_views", "untrained_nodes", "FEEDS"]
 
@@ -119,10 +119,7 @@ def untrained_nodes(walks: np.ndarray, n_nodes: int) -> np.ndarray:
     Skip-gram only moves a node's vector when the node has a context word, so these
     rows carry no information; :func:`embed_walks` sets them to zero.
     """
-    lengths = walk_lengths(walks)
-    used = walks[lengths >= 2]
-    counts = np.bincount(used[used >= 0].ravel(), minlength=n_nodes)
-    return counts[:n_nodes] == 0
+    return visit_counts(walks, n_nodes, min_length=2) == 0
 
 
 class _Walks:
@@ -207,15 +204,13 @@ def embed_walks(
     if walks.ndim != 2:
         raise ValueError(f"walks must be a 2-d array; got shape {walks.shape}")
     vectors = np.zeros((n_nodes, dimensions), dtype=np.float32)
+    counts = visit_counts(walks, n_nodes, min_length=2)
     lengths = walk_lengths(walks)
     keep = lengths >= 2  # a lone node has no context: nothing to learn from it
-    walks, lengths = walks[keep], lengths[keep]
+    if not keep.all():  # copy only when there is something to drop
+        walks, lengths = walks[keep], lengths[keep]
     if walks.shape[0] == 0:
         return vectors
-    valid = walks[walks >= 0]
-    if valid.size and (int(valid.max()) >= n_nodes):
-        raise ValueError("walks refer to a node index >= n_nodes")
-    counts = np.bincount(valid, minlength=n_nodes)
     present = np.flatnonzero(counts)
     keys = [str(i) for i in present]
     total_words = int(lengths.sum())

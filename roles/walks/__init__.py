@@ -15,7 +15,7 @@ from ..errors import ConfigError, InputError
 from ..graph import CSRGraph
 from . import kernel as _kernel
 
-__all__ = ["generate_walks", "walks_to_names", "walk_lengths"]
+__all__ = ["generate_walks", "walks_to_names", "walk_lengths", "visit_counts"]
 
 
 def _check_positive(name: str, value: float) -> float:
@@ -170,12 +170,16 @@ def generate_walks(
 
 
 def walk_lengths(walks: np.ndarray) -> np.ndarray:
-    """Number of nodes in each walk (entries before the first ``-1``)."""
-    if walks.shape[1] == 0:
-        return np.zeros(walks.shape[0], dtype=np.int64)
-    valid = walks >= 0
-    # -1 only ever follows the last node, so the count of valid entries is the length.
-    return valid.sum(axis=1, dtype=np.int64)
+    """Number of nodes in each walk (the entries before the first ``-1``), int64."""
+    return _kernel.row_lengths(np.ascontiguousarray(walks, dtype=np.int32))
+
+
+def visit_counts(walks: np.ndarray, n_nodes: int, *, min_length: int = 1) -> np.ndarray:
+    """Occurrences of each node in the walks that have at least ``min_length`` nodes."""
+    walks = np.ascontiguousarray(walks, dtype=np.int32)
+    if walks.size and int(walks.max()) >= n_nodes:
+        raise ValueError("walks refer to a node index >= n_nodes")
+    return _kernel.visit_counts(walks, _kernel.row_lengths(walks), n_nodes, min_length)
 
 
 def walks_to_names(walks: np.ndarray, names: tuple[str, ...] | list[str]) -> list[list[str]]:

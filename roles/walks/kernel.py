@@ -30,7 +30,7 @@ from __future__ import annotations
 import numpy as np
 from numba import njit, prange
 
-__all__ = ["build_alias", "walk_serial", "walk_parallel"]
+__all__ = ["build_alias", "walk_serial", "walk_parallel", "row_lengths", "visit_counts"]
 
 _GAMMA = np.uint64(0x9E3779B97F4A7C15)
 _M1 = np.uint64(0xBF58476D1CE4E5B9)
@@ -346,3 +346,27 @@ def build_alias(indptr, weights, prob, alias, row_weight, work, small, large):  
         for j in range(d):
             prob[s + j] = work[j]
     return prob, alias
+
+
+@njit(cache=True)
+def row_lengths(walks):  # pragma: no cover - compiled
+    """Nodes in each walk: the entries before the first ``-1``."""
+    n, length = walks.shape
+    out = np.empty(n, dtype=np.int64)
+    for k in range(n):
+        m = 0
+        while m < length and walks[k, m] >= 0:
+            m += 1
+        out[k] = m
+    return out
+
+
+@njit(cache=True)
+def visit_counts(walks, lengths, n_nodes, min_length):  # pragma: no cover - compiled
+    """How often each node occurs in walks of at least ``min_length`` nodes."""
+    counts = np.zeros(n_nodes, dtype=np.int64)
+    for k in range(walks.shape[0]):
+        if lengths[k] >= min_length:
+            for i in range(lengths[k]):
+                counts[walks[k, i]] += 1
+    return counts

@@ -221,11 +221,12 @@ def main(argv: list[str] | None = None) -> int:
     if not args.command:
         parser.print_help(sys.stderr)
         return 2
-    logging.basicConfig(
-        level=logging.WARNING if args.quiet else logging.INFO,
-        format="%(message)s",
-        stream=sys.stderr,
-    )
+    # Only our own logger speaks; the libraries' chatter (gensim, WeasyPrint) stays off.
+    handler = logging.StreamHandler(sys.stderr)
+    handler.setFormatter(logging.Formatter("%(message)s"))
+    log.handlers[:] = [handler]
+    log.propagate = False
+    log.setLevel(logging.WARNING if args.quiet else logging.INFO)
     try:
         _dispatch(args)
     except RolesError as exc:

@@ -45,7 +45,7 @@ _DEFAULT_FEED = "corpus_file"
 
 # Below this many walk tokens per view, starting two processes costs more than it saves
 # (measured in benchmarks/bench_walks.py: a fresh process needs about 2 s to start).
-_PARALLEL_MIN_TOKENS = 2_000_000
+_PARALLEL_MIN_TOKENS = 1_000_000
 
 _log = logging.getLogger(__name__)
 
@@ -347,6 +347,13 @@ def embed_views(
     dict
         ``{"local": Embedding, "far": Embedding}``.
 
+    Notes
+    -----
+    The processes are started with the "spawn" method (numba's and gensim's threads
+    do not survive ``fork``). As with any spawned process, a script that calls this at
+    import level must put that call under ``if __name__ == "__main__":``. Inside a
+    daemonic process, which may not have children, the views run one after the other.
+
     References
     ----------
     .. [1] A. Grover and J. Leskovec, "node2vec: Scalable feature learning for
@@ -360,6 +367,8 @@ def embed_views(
     if processes is None:
         tokens = csr.n_nodes * config.walks.walks_per_node * config.walks.walk_length
         processes = 2 if tokens >= _PARALLEL_MIN_TOKENS and (os.cpu_count() or 1) > 1 else 1
+    if multiprocessing.current_process().daemon:
+        processes = 1
     if processes <= 1:
         return {name: _embed_view(*args) for name, args in jobs.items()}
     # numba and gensim threads do not survive fork() safely; start clean processes.

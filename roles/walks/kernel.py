@@ -7,6 +7,12 @@ is then distributed as ``w(v, x) * a(t, x)``, which is the node2vec rule (Grover
 Leskovec, KDD 2016, Sec. 3.2.2). Memory is O(E): one alias table per row, stored in two
 arrays aligned with the CSR ``indices``, and no per-edge transition tables.
 
+Two refinements keep the rejections few without changing the distribution. A candidate
+whose uniform falls below ``min(a) / envelope`` is accepted without the adjacency test.
+When ``1/p`` is the largest bias, the return to ``t`` is treated as KnightKing's
+"outlier": the envelope is ``max(1, 1/q)`` and the return's mass above it,
+``w(v, t) * (1/p - envelope)``, is drawn directly. Rows must not repeat a neighbour.
+
 Random numbers come from SplitMix64 (Steele, Lea & Flood, OOPSLA 2014) keyed by the run
 key and the walk number, so walk ``k`` is the same whatever the chunking or the thread
 count.

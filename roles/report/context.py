@@ -1,24 +1,52 @@
-"""Result -> the plain values the report template shows (no computation of findings).
+"""Result -> the plain values the report template shows.
 
-This module only selects, rounds and words what the pipeline found; the measures
-themselves live in the stage modules.
+This module selects, orders, rounds and words what the pipeline found, and lays out
+the figures. It computes nothing the findings rest on: the measures live in the stage
+modules. What it does count is presentation only: ties inside and between communities
+(for the community map and table), a community's internal density, and, for the few
+worst cases of a directed network, how many members lie downstream of them.
 """
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from typing import Any
 
 import numpy as np
+import pandas as pd
 
 from ..pipeline import Result
+from . import figures
 
-__all__ = ["build_context", "VOCABULARY", "TOP"]
+__all__ = ["build_context", "VOCABULARY", "TOP", "TOP_COMMUNITIES"]
 
 #: How many rows a table in the PDF shows; the rest is in nodes.csv.
 TOP = 12
+#: Communities described one by one; smaller ones are summed into one row.
+TOP_COMMUNITIES = 12
+#: Circles on the community map; the rest are drawn as one "others" circle.
+MAP_CIRCLES = 15
+
+_BASE = {
+    "member": "member",
+    "members": "members",
+    "Member": "Member",
+    "Members": "Members",
+    "tie": "tie",
+    "ties": "ties",
+    "community": "community",
+    "communities": "communities",
+    "Community": "Community",
+    "Communities": "Communities",
+    "network": "network",
+    "upstream": "upstream",
+    "downstream": "downstream",
+    "if_lost": "if removed",
+}
 
 VOCABULARY: dict[str, dict[str, str]] = {
     "organisation": {
+        **_BASE,
         "member": "person",
         "members": "people",
         "Member": "Person",
@@ -30,8 +58,10 @@ VOCABULARY: dict[str, dict[str, str]] = {
         "Community": "Team",
         "Communities": "Teams",
         "network": "organisation",
+        "if_lost": "if unavailable",
     },
     "supply": {
+        **_BASE,
         "member": "firm",
         "members": "firms",
         "Member": "Firm",
@@ -43,26 +73,23 @@ VOCABULARY: dict[str, dict[str, str]] = {
         "Community": "Cluster",
         "Communities": "Clusters",
         "network": "supply network",
+        "upstream": "towards its suppliers",
+        "downstream": "towards its customers",
+        "if_lost": "if it fails",
     },
-    "general": {
-        "member": "member",
-        "members": "members",
-        "Member": "Member",
-        "Members": "Members",
-        "tie": "tie",
-        "ties": "ties",
-        "community": "community",
-        "communities": "communities",
-        "Community": "Community",
-        "Communities": "Communities",
-        "network": "network",
-    },
+    "general": dict(_BASE),
 }
+
+_ROLE_ORDER = ("connector hub", "hub-like", "bridge-like", "peripheral", "member")
 
 
 def _fmt(x: Any, digits: int = 2) -> str:
     if x is None:
         return "–"
+    if isinstance(x, (bool, np.bool_)):
+        return "yes" if x else "no"
+    if isinstance(x, (int, np.integer)):
+        return f"{int(x):,}"
     if isinstance(x, (float, np.floating)):
         if not np.isfinite(x):
             return "–"
@@ -72,7 +99,7 @@ def _fmt(x: Any, digits: int = 2) -> str:
 
 def _agreement_words(ari: float | None) -> str:
     # Bands are our own reading aid, not a published scale.
-    if ari is None:
+    if ari is None or not np.isfinite(ari):
         return "could not be compared"
     if ari >= 0.8:
         return "largely agree"
@@ -83,61 +110,588 @@ def _agreement_words(ari: float | None) -> str:
     return "hardly agree"
 
 
-def _communities(result: Result, v: dict[str, str]) -> list[dict[str, Any]]:
+def _nmi_words(nmi: float) -> str:
+    # Our own reading aid, as above.
+    if nmi >= 0.7:
+        return "follow them closely"
+    if nmi >= 0.4:
+        return "partly follow them"
+    return "cut across them"
+
+
+# ------------------------------------------------------------------ communities
+
+
+def _tie_counts(result: Result) -> tuple[dict[int, int], dict[tuple[int, int], int]]:
+    """Ties inside each community and between each pair, counted once per tie."""
     g = result.graph
     und = g.to_undirected() if g.is_directed() else g
+    comm = dict(zip(result.nodes.node, result.nodes.community.astype(int), strict=True))
+    inside: dict[int, int] = {}
+    between: dict[tuple[int, int], int] = {}
+    for a, b in und.edges():
+        ca, cb = comm[a], comm[b]
+        if ca <= 0 or cb <= 0:
+            continue
+        if ca == cb:
+            inside[ca] = inside.get(ca, 0) + 1
+        else:
+            key = (min(ca, cb), max(ca, cb))
+            between[key] = between.get(key, 0) + 1
+    return inside, between
+
+
+def _communities(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
     table = result.nodes
-    out = []
-    for label, part in table[table.community > 0].groupby("community"):
-        members = list(part.node)
-        sub = und.subgraph(members)
-        size = len(members)
+    found = table[table.community > 0]
+    sizes = found.community.value_counts()
+    order = sorted(sizes.index, key=lambda c: (-sizes[c], c))
+    inside, between = _tie_counts(result)
+    links: dict[int, dict[int, int]] = {c: {} for c in order}
+    for (a, b), n in between.items():
+        links[a][b] = n
+        links[b][a] = n
+    has_conf = "confidence" in table.columns
+    rows = []
+    for c in order[:TOP_COMMUNITIES]:
+        part = found[found.community == c]
+        size = int(sizes[c])
         possible = size * (size - 1) / 2
-        density = sub.number_of_edges() / possible if possible else 0.0
-        links: dict[int, int] = {}
-        comm = dict(zip(table.node, table.community, strict=True))
-        for node in members:
-            for nb in und.neighbors(node):
-                c = comm[nb]
-                if c != label and c > 0:
-                    links[c] = links.get(c, 0) + 1
-        key = part.sort_values(["within_z", "betweenness"], ascending=False).node.head(3)
-        out.append(
+        out_ties = sum(links[c].values())
+        key = part.sort_values(["within_z", "degree"], ascending=False, kind="stable").node
+        tied = sorted(links[c].items(), key=lambda kv: (-kv[1], kv[0]))[:3]
+        rows.append(
             {
-                "label": int(label),
+                "label": int(c),
                 "size": size,
-                "density": _fmt(density),
-                "internal_ties": sub.number_of_edges(),
-                "key_members": list(key),
-                "links": ", ".join(
-                    f"{v['Community']} {c} ({n})"
-                    for c, n in sorted(links.items(), key=lambda kv: -kv[1])[:4]
-                )
-                or "none",
+                "density": _fmt(inside.get(c, 0) / possible if possible else 0.0),
+                "inside": _fmt(
+                    inside.get(c, 0) / (inside.get(c, 0) + out_ties)
+                    if inside.get(c, 0) + out_ties
+                    else float("nan")
+                ),
+                "membership": _fmt(float(part.membership.mean())),
+                "confidence": _fmt(float(part.confidence.mean())) if has_conf else None,
+                "key_members": list(key.head(3)),
+                "links": [{"label": int(o), "ties": n} for o, n in tied],
             }
         )
-    out.sort(key=lambda c: -c["size"])
+    rest = order[TOP_COMMUNITIES:]
+    rest_row = None
+    if rest:
+        rest_row = {
+            "count": len(rest),
+            "size": int(sizes[rest].sum()),
+            "largest": int(sizes[rest].max()),
+        }
+
+    # The map: the largest communities as circles, the rest as one circle.
+    shown = order[:MAP_CIRCLES]
+    idx = {c: i for i, c in enumerate(shown)}
+    k = len(shown) + (1 if len(order) > MAP_CIRCLES else 0)
+    matrix = np.zeros((k, k))
+    for (a, b), n in between.items():
+        i, j = idx.get(a, k - 1), idx.get(b, k - 1)
+        if i != j:
+            matrix[i, j] += n
+            matrix[j, i] += n
+    map_sizes = [int(sizes[c]) for c in shown]
+    labels = [str(c) for c in shown]
+    if len(order) > MAP_CIRCLES:
+        map_sizes.append(int(sizes[order[MAP_CIRCLES:]].sum()))
+        labels.append(f"{len(order) - MAP_CIRCLES} others")
+    figure = None
+    if len(order) >= 2:
+        figure = figures.community_map(map_sizes, matrix, labels, words=v)
+    return {
+        "rows": rows,
+        "rest": rest_row,
+        "count": len(order),
+        "map": figure,
+        "has_confidence": has_conf,
+        "between_ties": int(sum(between.values())),
+        "inside_ties": int(sum(inside.values())),
+    }
+
+
+# ------------------------------------------------------------------------ roles
+
+
+def _row(t: pd.DataFrame, name: str) -> dict[str, Any]:
+    r = t.loc[name]
+    out = {
+        "node": name,
+        "community": int(r.community),
+        "role": str(r.role),
+        "betweenness": _fmt(r.betweenness, 3),
+        "participation": _fmt(r.participation),
+        "within_z": _fmt(r.within_z),
+        "constraint": _fmt(r.constraint),
+        "effective_size": _fmt(r.effective_size, 1),
+        "dependents": int(r.dependents),
+        "degree": int(r.degree),
+        "membership": _fmt(r.membership),
+        "agreement": _fmt(r.view_agreement),
+        "local_group": int(r.local_group),
+        "far_group": int(r.far_group),
+        "p": float(r.participation),
+    }
     return out
 
 
-def _rows(result: Result, names: list[str]) -> list[dict[str, str]]:
+def _neighbour_communities(result: Result, name: str, own: int) -> list[int]:
+    """The communities of ``name``'s neighbours other than its own, most ties first."""
+    g = result.graph
+    und = g.to_undirected() if g.is_directed() else g
+    comm = result.nodes.set_index("node").community
+    counts: dict[int, int] = {}
+    for nb in und.neighbors(name):
+        c = int(comm[nb])
+        if c > 0 and c != own:
+            counts[c] = counts.get(c, 0) + 1
+    return [c for c, _ in sorted(counts.items(), key=lambda kv: (-kv[1], kv[0]))]
+
+
+def _roles(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
+    s = result.summary
     t = result.nodes.set_index("node")
-    rows = []
-    for name in names[:TOP]:
-        r = t.loc[name]
-        rows.append(
+    connected = result.nodes[result.nodes.community > 0]
+    bridges = [_row(t, n) for n in s["bridges"][:TOP]]
+    for r in bridges:
+        r["reaches"] = _neighbour_communities(result, r["node"], r["community"])[:3]
+    hubs = [_row(t, n) for n in s["hubs"][:TOP]]
+    periph_all = connected[connected.role == "peripheral"].sort_values(
+        ["degree", "participation"], kind="stable"
+    )
+    peripheral = [_row(t, n) for n in periph_all.node.head(TOP)]
+    counts = result.nodes.role.value_counts()
+    ordered = [r for r in _ROLE_ORDER if r in counts.index] + sorted(
+        r for r in counts.index if r not in _ROLE_ORDER
+    )
+    role_counts = [{"role": r, "count": int(counts[r])} for r in ordered]
+    names = connected.node.tolist()
+    pos = {n: i for i, n in enumerate(names)}
+    annotate = [pos[n] for n in (s["hubs"][:3] + s["bridges"][:3]) if n in pos]
+    figure = None
+    if len(connected):
+        figure = figures.role_map(
+            connected.within_z.to_numpy(dtype=float),
+            connected.participation.to_numpy(dtype=float),
+            connected.role.astype(str).tolist(),
+            names=names,
+            annotate=annotate,
+            words=v,
+        )
+    from ..measures import BRIDGE_P, BRIDGE_SHARE, HUB_Z
+
+    return {
+        "hub_z": _fmt(HUB_Z, 1),
+        "bridge_p": _fmt(BRIDGE_P),
+        "bridge_share": _fmt(100 * BRIDGE_SHARE, 0),
+        "bridges": bridges,
+        "hubs": hubs,
+        "peripheral": peripheral,
+        "n_bridges": len(s["bridges"]),
+        "n_hubs": len(s["hubs"]),
+        "n_peripheral": len(periph_all),
+        "counts": role_counts,
+        "map": figure,
+    }
+
+
+# ---------------------------------------------------------------- dependencies
+
+
+def _dependencies(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
+    import networkx as nx
+
+    s = result.summary
+    t = result.nodes.set_index("node")
+    worst = [d["node"] for d in s["single_points_of_failure"]][:TOP]
+    rows = [_row(t, n) for n in worst]
+    directed = bool(s["directed"])
+    reach = None
+    if directed and rows:
+        # Presentation only: how many members lie downstream at all, beside the
+        # pipeline's count of those that depend on the node alone.
+        reach = [len(nx.descendants(result.graph, r["node"])) for r in rows]
+        for r, n in zip(rows, reach, strict=True):
+            r["reach"] = n
+    figure = None
+    if rows:
+        figure = figures.dependents_chart(
+            [r["node"] for r in rows],
+            [r["dependents"] for r in rows],
+            reach=reach,
+            directed=directed,
+            words=v,
+        )
+    total = int((result.nodes.dependents > 0).sum())
+    return {"rows": rows, "figure": figure, "count": total, "directed": directed}
+
+
+# ----------------------------------------------------------------------- views
+
+
+def _reading(r: Mapping[str, Any], moved: bool) -> str:
+    """One line on what a low neighbour overlap usually means for this member."""
+    if moved and r["p"] >= 0.5:
+        return "ties in several groups, and each view sides with another: a go-between"
+    if moved:
+        return "its close circle lies in one group, its wider region in another"
+    if r["degree"] <= 2:
+        return "few ties, so neither view places it firmly"
+    if r["membership_value"] < 0.5:
+        return "held loosely by its group: it sits near a boundary"
+    if r["role"] in ("bridge-like", "connector hub"):
+        return "a bridge: its close circle mixes several groups"
+    return "same group in both views, different neighbours: the edge of its group"
+
+
+def _matched(cont: np.ndarray) -> dict[int, int]:
+    """Local group -> the far group holding most of its members (1-based labels)."""
+    return {i + 1: int(np.argmax(row)) + 1 for i, row in enumerate(cont) if row.sum() > 0}
+
+
+def _views(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
+    s = result.summary
+    views = s["views"]
+    table = result.nodes
+    t = table.set_index("node")
+    connected = table[table.community > 0]
+    cont = np.asarray(views.get("contingency") or [], dtype=float)
+    groups = views.get("groups", {})
+    both = groups.get("local", 0) > 0 and groups.get("far", 0) > 0
+    match = _matched(cont) if both and cont.ndim == 2 else {}
+    # A member "moves" when its far group is not the one most of its local group is in:
+    # the off-diagonal cells of the contingency figure.
+    moved = np.array(
+        [
+            bool(match) and match.get(int(lg)) != int(fg)
+            for lg, fg in zip(connected.local_group, connected.far_group, strict=True)
+        ],
+        dtype=bool,
+    )
+    ranked = (
+        connected.assign(_moved=moved)
+        .dropna(subset=["view_agreement"])
+        .sort_values(
+            ["_moved", "view_agreement", "membership"], ascending=[False, True, True], kind="stable"
+        )
+    )
+    disagree = []
+    for name, m in zip(ranked.node.head(TOP), ranked._moved.head(TOP), strict=True):
+        r = _row(t, name)
+        r["membership_value"] = float(t.loc[name].membership)
+        r["moved"] = bool(m)
+        r["reading"] = _reading(r, bool(m))
+        disagree.append(r)
+    contingency = None
+    if cont.ndim == 2 and cont.size and both:
+        contingency = figures.contingency_heatmap(
+            cont,
+            row_labels=[str(i + 1) for i in range(cont.shape[0])],
+            col_labels=[str(j + 1) for j in range(cont.shape[1])],
+            row_title="group in the local view",
+            col_title="group in the far view",
+            key="views",
+            words=v,
+            caption=(
+                f"Rows are the groups of the local view, columns those of the far view; each "
+                f"number counts the {v['members']} in both, and the darker a cell, the larger "
+                "its share of the row. One dark cell per row: the views draw the same "
+                "groups. A row spread over several columns: the far view splits what the "
+                "local view keeps together (or the other way round)."
+            ),
+        )
+    projection = None
+    idx = connected.index.to_numpy()
+    if len(idx) >= 3 and {"local", "far"} <= set(result.vectors):
+        projection = figures.projections(
+            {view: np.asarray(result.vectors[view])[idx] for view in ("local", "far")},
+            connected.community.to_numpy(dtype=int),
+            titles={"local": "Local view", "far": "Far view"},
+            words=v,
+        )
+    params = s["parameters"].get("views", {})
+    return {
+        "ari": _fmt(views.get("ari")),
+        "nmi": _fmt(views.get("nmi")),
+        "words": _agreement_words(views.get("ari")),
+        "k": views.get("neighbours_compared", 0),
+        "groups": groups,
+        "noise": {k: _fmt(100 * x, 0) for k, x in views.get("noise_share", {}).items()},
+        "contingency": contingency,
+        "projection": projection,
+        "disagree": disagree,
+        "community_view": s.get("community_view", "far"),
+        "p_local": params.get("local", {}).get("p"),
+        "q_local": params.get("local", {}).get("q"),
+        "p_far": params.get("far", {}).get("p"),
+        "q_far": params.get("far", {}).get("q"),
+        "low_agreement": int((connected.view_agreement < 0.2).sum()),
+        "moved": int(moved.sum()),
+        "both": both,
+        "connected": len(connected),
+    }
+
+
+# -------------------------------------------------------------- formal groups
+
+
+_BROKER_KINDS = ("coordinator", "itinerant", "representative", "gatekeeper", "liaison")
+
+
+def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[str, Any] | None:
+    f = result.summary.get("formal")
+    if not f:
+        return None
+    cross: Mapping[str, Mapping[str, int]] = f.get("crosstab", {})
+    sizes = {str(g): int(sum(row.values())) for g, row in cross.items()}
+    shown = sorted((g for g, n in sizes.items() if n >= min_group_size), key=lambda g: -sizes[g])
+    hidden = [g for g in sizes if sizes[g] < min_group_size]
+    ei = {str(g): float(x) for g, x in f.get("ei_index", {}).items() if str(g) in shown}
+    ei_rows = [
+        {"group": g, "size": sizes[g], "ei": _fmt(ei[g])}
+        for g in sorted(ei, key=lambda g: (ei[g], g))
+    ]
+    figure = None
+    if shown and result.summary.get("communities", 0) >= 2:
+        cols = sorted({str(c) for g in shown for c in cross[g]}, key=lambda c: (len(c), c))
+        table = np.array([[cross[g].get(c, 0) for c in cols] for g in shown], dtype=float)
+        keep = table.sum(axis=0) > 0
+        cols = [c for c, k in zip(cols, keep, strict=True) if k]
+        table = table[:, keep]
+        figure = figures.contingency_heatmap(
+            table,
+            row_labels=shown,
+            col_labels=["no ties" if c == "0" else c for c in cols],
+            row_title=str(f["attribute"]),
+            col_title=v["community"],
+            key="formal",
+            words=v,
+            caption=(
+                f"Rows are the values of '{f['attribute']}' given with the data, columns the "
+                f"{v['communities']} found; each number counts {v['members']}, and the darker "
+                f"a cell, the larger its share of the row. A row with one dark cell is one "
+                f"{v['community']}; a row spread out works across {v['communities']}."
+                + (
+                    f" {len(hidden)} groups of fewer than {min_group_size} {v['members']} "
+                    "are left out."
+                    if hidden
+                    else ""
+                )
+            ),
+        )
+    table = result.nodes
+    brokers: list[dict[str, Any]] = []
+    if all(k in table.columns for k in _BROKER_KINDS):
+        between = table[["itinerant", "representative", "gatekeeper", "liaison"]].sum(axis=1)
+        top = table.assign(_between=between)
+        top = top[top._between > 0].sort_values("_between", ascending=False, kind="stable")
+        attr = str(f["attribute"])
+        for r in top.head(TOP).itertuples():
+            group = str(getattr(r, attr)) if attr in table.columns else ""
+            brokers.append(
+                {
+                    "node": r.node,
+                    "group": group if sizes.get(group, 0) >= min_group_size else "(small group)",
+                    **{k: int(getattr(r, k)) for k in _BROKER_KINDS},
+                }
+            )
+    nmi = float(f.get("nmi", float("nan")))
+    if result.summary.get("communities", 0) < 2:
+        nmi = float("nan")
+    return {
+        "attribute": str(f["attribute"]),
+        "nmi": _fmt(nmi),
+        "nmi_words": _nmi_words(nmi) if np.isfinite(nmi) else "cannot be compared with it",
+        "figure": figure,
+        "ei": ei_rows,
+        "inward": ei_rows[0] if ei_rows and ei[ei_rows[0]["group"]] < 0 else None,
+        "outward": ei_rows[-1] if ei_rows and ei[ei_rows[-1]["group"]] > 0 else None,
+        "hidden": len(hidden),
+        "shown": len(shown),
+        "brokers": brokers,
+    }
+
+
+# -------------------------------------------------------------------- method
+
+
+def _flatten(d: Mapping[str, Any], prefix: str = "") -> list[tuple[str, str]]:
+    out: list[tuple[str, str]] = []
+    for k, val in d.items():
+        name = f"{prefix}{k}"
+        if isinstance(val, Mapping):
+            out.extend(_flatten(val, name + "."))
+        else:
+            out.append((name, _fmt(val, 3) if isinstance(val, float) else str(val)))
+    return out
+
+
+_COUNT_WORDS = {
+    "rows_read": "rows read",
+    "blank_rows_skipped": "blank rows skipped",
+    "self_loops_dropped": "ties from a member to itself dropped",
+    "duplicate_edges_merged": "repeated ties merged (weights added)",
+    "names_trimmed": "names with spaces trimmed",
+    "columns_ignored": "columns ignored",
+    "zero_weight_edges_dropped": "ties of weight zero dropped",
+    "nodes": "members read",
+    "edges": "ties kept",
+}
+
+
+def _method(result: Result) -> dict[str, Any]:
+    s = result.summary
+    inp = s.get("input", {})
+    counts = [
+        {"what": _COUNT_WORDS.get(k, k.replace("_", " ")), "n": _fmt(val)}
+        for k, val in inp.get("counts", {}).items()
+    ]
+    for key, words in (
+        ("nodes_only_in_nodes_file", "members only in the nodes file (kept without ties)"),
+        ("nodes_missing_from_nodes_file", "members missing from the nodes file"),
+    ):
+        if key in inp:
+            counts.append({"what": words, "n": _fmt(inp[key])})
+    grouping = [
+        {
+            "view": view,
+            "groups": g.n_groups,
+            "min_size": g.min_cluster_size,
+            "dims": g.dimensions,
+            "noise": _fmt(100 * g.noise_share, 0),
+        }
+        for view, g in result.groupings.items()
+    ]
+    return {
+        "parameters": _flatten(s.get("parameters", {})),
+        "counts": counts,
+        "grouping": grouping,
+        "timings": [(k, _fmt(float(t), 2)) for k, t in s.get("timings", {}).items()],
+        "total_time": _fmt(float(sum(s.get("timings", {}).values())), 1),
+        "versions": list(s.get("versions", {}).items()),
+        "structure": _structure(s.get("structure")),
+        "betweenness": _betweenness(s.get("betweenness")),
+        "file": inp.get("file", "(given as a graph)"),
+        "nodes_file": inp.get("nodes_file"),
+        "sha256": inp.get("sha256", "–"),
+        "format": inp.get("format", "–"),
+    }
+
+
+def _structure(st: Any) -> dict[str, Any] | None:
+    """The structure test's figures, as far as the pipeline gave them."""
+    if not isinstance(st, Mapping):
+        return None
+    mod = st.get("modularity") or {}
+    null = st.get("randomised") or {}
+    rows = [
+        ("Verdict", "clear community structure" if st.get("clear") else "not clear"),
+        ("Modularity of the communities", _fmt(mod.get("communities"))),
+        ("Best modularity found in the network", _fmt(mod.get("best_found"))),
+        (
+            "Best modularity in randomised networks",
+            f"{_fmt(null.get('mean'))} ± {_fmt(null.get('sd'), 3)}" if null else "–",
+        ),
+        ("Distance in standard deviations (z)", _fmt(st.get("z"))),
+        ("Empirical p-value", _fmt(st.get("p_value"), 3)),
+        ("Randomised networks", _fmt(st.get("randomisations"))),
+    ]
+    return {
+        "rows": [(k, val) for k, val in rows if val not in ("–", "– ± –")],
+        "rule": str(st.get("rule", "")),
+        "budget": str(st.get("budget", "")),
+    }
+
+
+def _betweenness(b: Any) -> str | None:
+    """How betweenness was computed, from the fields of ``measures.BetweennessInfo``."""
+    if b is None:
+        return None
+    get = b.get if isinstance(b, Mapping) else lambda k, d=None: getattr(b, k, d)
+    weighted = " along the strongest ties (distance = 1 / weight)" if get("weighted") else ""
+    if get("method") == "exact":
+        return f"exact, every member a starting point (Brandes 2001){weighted}"
+    return (
+        f"estimated from {_fmt(get('k'))} randomly drawn starting points{weighted}; "
+        f"largest standard error {_fmt(get('expected_error'), 4)}, "
+        f"95% bound {_fmt(get('error_bound'), 4)}"
+    )
+
+
+# ------------------------------------------------------------------- summary
+
+
+def _first_looks(
+    ctx: Mapping[str, Any], v: Mapping[str, str], clear: bool | None
+) -> list[dict[str, str]]:
+    """The two or three things to look at first, most urgent first."""
+    out: list[dict[str, str]] = []
+    deps = ctx["dependencies"]["rows"]
+    if deps:
+        d = deps[0]
+        out.append(
             {
-                "node": name,
-                "community": str(r.community),
-                "role": r.role,
-                "betweenness": _fmt(r.betweenness, 3),
-                "participation": _fmt(r.participation),
-                "within_z": _fmt(r.within_z),
-                "dependents": str(int(r.dependents)),
-                "agreement": _fmt(r.view_agreement),
+                "who": d["node"],
+                "text": f"{v['if_lost']}, cuts off {d['dependents']} other {v['members']}"
+                + (" from every source of supply" if ctx["s"]["directed"] else "")
+                + ". Check whether there is a second route.",
+                "where": "section 4",
             }
         )
-    return rows
+    bridges = ctx["roles"]["bridges"]
+    if bridges:
+        b = bridges[0]
+        reach = b.get("reaches") or []
+        if reach:
+            others = [str(c) for c in reach[:2]]
+            plural = v["communities"] if len(others) > 1 else v["community"]
+            between = f"{v['community']} {b['community']} and {plural} {' and '.join(others)}"
+        else:
+            between = v["communities"]
+        out.append(
+            {
+                "who": b["node"],
+                "text": f"carries much of the traffic between {between}; ask what would "
+                f"happen to it without this one {v['member']}.",
+                "where": "section 3",
+            }
+        )
+    if clear is False:
+        out.append(
+            {
+                "who": "",
+                "text": f"the {v['communities']} are not clearly stronger than in random "
+                f"networks with the same numbers of {v['ties']}: read them as a rough "
+                "sketch, not as a finding.",
+                "where": "section 2",
+            }
+        )
+    elif ctx["formal"] and ctx["formal"]["inward"] and len(out) < 3:
+        f = ctx["formal"]
+        g = f["inward"]
+        out.append(
+            {
+                "who": f"{f['attribute']} {g['group']}" if g["group"].isdigit() else g["group"],
+                "text": f"the most inward-looking {f['attribute']} (E-I index {g['ei']}): "
+                f"most of its {v['ties']} stay inside it. Is that by design?",
+                "where": "section 2",
+            }
+        )
+    elif ctx["roles"]["hubs"] and len(out) < 3:
+        h = ctx["roles"]["hubs"][0]
+        out.append(
+            {
+                "who": h["node"],
+                "text": f"the strongest hub of {v['community']} {h['community']} "
+                f"({h['degree']} {v['ties']}); much of it runs through this {v['member']}.",
+                "where": "section 3",
+            }
+        )
+    return out[:3]
 
 
 def build_context(
@@ -148,20 +702,37 @@ def build_context(
     paper: str,
     min_group_size: int,
     made: str,
+    pseudonymized: bool = False,
 ) -> dict[str, Any]:
-    """Everything the template needs, as strings, numbers and short lists."""
+    """Everything the template needs, as strings, numbers, short lists and figures.
+
+    Parameters
+    ----------
+    result : Result
+        What the pipeline found; only read.
+    title : str
+        Printed on the cover and in the running header.
+    kind : {'organisation', 'supply', 'general'}
+        Chooses the vocabulary (people and teams, firms and clusters, or neutral).
+    paper : {'a4', 'letter'}
+        Page size.
+    min_group_size : int
+        No figure or table reports on an attribute group smaller than this.
+    made : str
+        When the report was made, as printed on the cover.
+    pseudonymized : bool
+        Whether the names were replaced by codes before the analysis.
+
+    Returns
+    -------
+    dict
+    """
     s = result.summary
     v = VOCABULARY.get(kind, VOCABULARY["general"])
-    views = s["views"]
-    table = result.nodes
-    spof = [d["node"] for d in s["single_points_of_failure"]]
-    disagree = table[table.community > 0].sort_values("view_agreement").node.tolist()
-    peripheral = (
-        table[table.role == "peripheral"].sort_values("degree").node.tolist()
-        if "peripheral" in set(table.role)
-        else []
-    )
-    return {
+    structure = s.get("structure") if isinstance(s.get("structure"), Mapping) else None
+    clear = structure.get("clear") if structure else None
+    groups_found = s["views"].get("groups", {}).get(s.get("community_view", "far"), None)
+    ctx: dict[str, Any] = {
         "title": title,
         "made": made,
         "paper": "A4" if paper == "a4" else "letter",
@@ -169,19 +740,19 @@ def build_context(
         "kind": kind,
         "s": s,
         "min_group_size": min_group_size,
+        "pseudonymized": pseudonymized,
         "input_name": s["input"].get("file", "(given as a graph)"),
-        "agreement_words": _agreement_words(views["ari"]),
-        "ari": _fmt(views["ari"]),
-        "nmi": _fmt(views["nmi"]),
-        "communities": _communities(result, v),
-        "bridges": _rows(result, s["bridges"]),
-        "hubs": _rows(result, s["hubs"]),
-        "spof": _rows(result, spof),
-        "peripheral": _rows(result, peripheral),
-        "disagree": _rows(result, disagree),
-        "n_bridges": len(s["bridges"]),
-        "n_hubs": len(s["hubs"]),
-        "n_spof": len(spof),
         "top": TOP,
         "fmt": _fmt,
+        "clear": clear,
+        "no_groups": groups_found == 0,
+        "isolated": s.get("isolated", {}).get("count", 0),
     }
+    ctx["communities"] = _communities(result, v)
+    ctx["roles"] = _roles(result, v)
+    ctx["dependencies"] = _dependencies(result, v)
+    ctx["views"] = _views(result, v)
+    ctx["formal"] = _formal(result, v, min_group_size)
+    ctx["method"] = _method(result)
+    ctx["first_looks"] = _first_looks(ctx, v, clear)
+    return ctx

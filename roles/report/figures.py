@@ -65,6 +65,33 @@ ROLE_REGIONS = (
 )
 _HUB_Z = 2.5
 
+# Marker, colour and size of the report's role labels in the role map; labels the
+# pipeline may add later fall back to the remaining shapes.
+_ROLE_STYLE = {
+    "connector hub": ("*", "#000000", 70),
+    "hub-like": ("D", PALETTE[5], 30),
+    "bridge-like": ("^", PALETTE[0], 32),
+    "peripheral": ("s", PALETTE[1], 16),
+    "member": ("o", "#d9d9d9", 9),
+}
+
+
+def _role_rank(kind: str) -> int:
+    names = list(_ROLE_STYLE)
+    return names.index(kind) if kind in names else len(names)
+
+
+def _role_styles(kinds: Sequence[str]) -> dict[str, tuple[str, str, float]]:
+    spare = [(m, c, 18.0) for m, c in zip(("v", "P", "X", "<", ">"), PALETTE[2:], strict=False)]
+    out: dict[str, tuple[str, str, float]] = {}
+    for kind in kinds:
+        if kind in _ROLE_STYLE:
+            out[kind] = _ROLE_STYLE[kind]
+        else:
+            out[kind] = spare.pop(0) if spare else ("o", _OTHER, 9.0)
+    return out
+
+
 _GENERAL = {
     "member": "member",
     "members": "members",
@@ -279,6 +306,8 @@ def community_map(
     top = strengths[order[0]] if order else 1.0
     n_links = int(np.count_nonzero(strengths))
 
+    label_gap = 0.35 * float(np.median(radii))
+
     def paint(fig: Any, ax: Any) -> None:
         from matplotlib.colors import to_rgb
         from matplotlib.patches import Circle
@@ -298,8 +327,12 @@ def community_map(
                 solid_capstyle="butt",
                 zorder=1,
             )
-            if k <= 10:
-                mx, my = (a + b) / 2
+            mid = (a + b) / 2
+            room = np.hypot(*(b - a)) > label_gap and all(
+                np.hypot(*(mid - xy[c])) > radii[c] + label_gap / 2 for c in range(k)
+            )
+            if k <= 10 and room:
+                mx, my = mid
                 ax.text(
                     mx,
                     my,
@@ -347,7 +380,7 @@ def community_map(
         f"{w['Communities']} as circles: the area of each circle is proportional to its "
         f"{w['members']} (the number under its label), and the width of a line to the "
         f"{w['ties']} between two {w['communities']}"
-        + (" (printed on the line)" if k <= 10 else "")
+        + (" (printed on the line where there is room)" if k <= 10 else "")
         + f"; {shown}. {w['Communities']} close together share many {w['ties']}; "
         "a circle with one thick line hangs on a single neighbour."
     )
@@ -399,7 +432,8 @@ def role_map(
     p = np.asarray(participation, dtype=float)
     r = np.asarray([str(x) for x in roles], dtype=object)
     ok = np.isfinite(z) & np.isfinite(p)
-    kinds = sorted(set(r[ok]), key=lambda x: (-int(np.sum(r[ok] == x)), x))
+    kinds = sorted(set(r[ok]), key=lambda x: (_role_rank(x), -int(np.sum(r[ok] == x)), x))
+    styles = _role_styles(kinds)
     zmax = max(3.2, float(np.nanmax(z[ok])) + 0.4) if ok.any() else 3.2
     zmin = min(-1.5, float(np.nanmin(z[ok])) - 0.3) if ok.any() else -1.5
 
@@ -411,30 +445,34 @@ def role_map(
         for x in (0.30, 0.75):
             ax.plot([x, x], [_HUB_Z, zmax], color="#444444", lw=0.7, ls="--", zorder=1)
         for name, (z0, _), (p0, p1) in ROLE_REGIONS:
-            y = zmin + 0.08 * (zmax - zmin) if z0 < 0 else zmax - 0.06 * (zmax - zmin)
             code, text = name.split(" ", 1)
+            hub = z0 >= _HUB_Z
             ax.text(
                 (p0 + p1) / 2,
-                y,
-                code if p1 - p0 < 0.1 else f"{code}\n{text}",
+                # Hub regions are named above the plot, the others just under the hub
+                # line, where points are rare; points are drawn over the names.
+                zmax + 0.02 * (zmax - zmin) if hub else _HUB_Z - 0.03 * (zmax - zmin),
+                code if p1 - p0 < 0.1 else f"{code} {text}",
                 ha="center",
-                va="center",
+                va="bottom" if hub else "top",
                 fontsize=5.8,
                 color="#555555",
-                zorder=1,
+                zorder=2,
+                clip_on=False,
             )
-        for i, kind in enumerate(kinds):
+        # The common label first, so the rare ones are drawn on top of it.
+        for kind in sorted(kinds, key=lambda x: -int(np.sum(r[ok] == x))):
             sel = ok & (r == kind)
-            style = i % len(MARKERS)
+            marker, colour, size = styles[kind]
             ax.scatter(
                 p[sel],
                 z[sel],
-                s=16,
-                marker=MARKERS[style],
-                facecolor=PALETTE[style],
+                s=size,
+                marker=marker,
+                facecolor=colour,
                 edgecolor="#222222",
                 linewidth=0.4,
-                alpha=0.85,
+                alpha=0.9,
                 label=f"{kind} ({int(sel.sum())})",
                 zorder=3,
             )
@@ -457,7 +495,16 @@ def role_map(
             f"participation coefficient: share of ties spread over other {w['communities']}"
         )
         ax.set_ylabel(f"within-{w['community']} z-score")
-        ax.legend(loc="center left", bbox_to_anchor=(1.01, 0.5), frameon=False, title="role")
+        handles, labels = ax.get_legend_handles_labels()
+        order = sorted(range(len(labels)), key=lambda i: _role_rank(labels[i].rsplit(" (", 1)[0]))
+        ax.legend(
+            [handles[i] for i in order],
+            [labels[i] for i in order],
+            loc="center left",
+            bbox_to_anchor=(1.01, 0.5),
+            frameon=False,
+            title="role",
+        )
 
     svg = _draw("role-map", (_WIDTH, 3.5), paint)
     caption = (
@@ -630,7 +677,19 @@ def contingency_heatmap(
     share = t / np.where(t.sum(axis=1, keepdims=True) > 0, t.sum(axis=1, keepdims=True), 1)
 
     def paint(fig: Any, ax: Any) -> None:
-        ax.imshow(share, cmap="Greys", vmin=0, vmax=1.15, aspect="auto", interpolation="nearest")
+        # Vector cells (no embedded raster), white gaps between them.
+        ax.pcolormesh(
+            np.arange(t.shape[1] + 1) - 0.5,
+            np.arange(t.shape[0] + 1) - 0.5,
+            share,
+            cmap="Greys",
+            vmin=0,
+            vmax=1.15,
+            edgecolors="white",
+            linewidth=1.2,
+        )
+        ax.set_xlim(-0.5, t.shape[1] - 0.5)
+        ax.set_ylim(t.shape[0] - 0.5, -0.5)
         for i in range(t.shape[0]):
             for j in range(t.shape[1]):
                 if t[i, j] == 0:
@@ -657,10 +716,6 @@ def contingency_heatmap(
         ax.tick_params(length=0)
         for spine in ax.spines.values():
             spine.set_visible(False)
-        ax.set_xticks(np.arange(-0.5, len(cols)), minor=True)
-        ax.set_yticks(np.arange(-0.5, len(rows)), minor=True)
-        ax.grid(which="minor", color="white", lw=1.2)
-        ax.tick_params(which="minor", length=0)
 
     height = min(4.6, 1.0 + 0.25 * len(rows))
     width = min(_WIDTH, 1.6 + 0.38 * len(cols))

@@ -41,12 +41,40 @@ def render_html(context: dict[str, Any]) -> str:
     return env.get_template("report.html").render(css=css, **context)
 
 
-def _no_fetch(url: str, *args: Any, **kwargs: Any) -> dict[str, Any]:
-    import weasyprint
+def _refuse(url: str) -> ValueError:
+    return ValueError(f"the report renderer fetches only data: URIs, not {url[:60]!r}")
 
-    if url.startswith("data:"):
-        return weasyprint.default_url_fetcher(url, *args, **kwargs)
-    raise ValueError(f"the report renderer does not fetch {url[:60]!r}")
+
+def _url_fetcher() -> Any:
+    """A WeasyPrint URL fetcher that serves ``data:`` URIs and refuses everything else.
+
+    The figures embed their raster parts as ``data:`` URIs; any other URL (``file:``,
+    ``http:``, a relative path) is refused, so nothing in the data can make the
+    renderer read a local file or reach the network. Recent WeasyPrint releases take a
+    :class:`weasyprint.urls.URLFetcher` subclass; older releases a plain function.
+    """
+    import weasyprint
+    import weasyprint.urls
+
+    base = getattr(weasyprint.urls, "URLFetcher", None)
+    if isinstance(base, type):
+
+        class _DataOnly(base):  # type: ignore[misc, valid-type]
+            def fetch(self, url: str, headers: Any = None) -> Any:
+                if not url.startswith("data:"):
+                    raise _refuse(url)
+                return super().fetch(url, headers)
+
+        return _DataOnly(allowed_protocols=("data",), allow_redirects=False)
+
+    legacy = weasyprint.default_url_fetcher
+
+    def _data_only(url: str, *args: Any, **kwargs: Any) -> Any:
+        if not url.startswith("data:"):
+            raise _refuse(url)
+        return legacy(url, *args, **kwargs)
+
+    return _data_only
 
 
 def write_pdf(html: str, path: Path) -> None:
@@ -55,9 +83,9 @@ def write_pdf(html: str, path: Path) -> None:
 
     import weasyprint
 
-    logging.getLogger("weasyprint").setLevel(logging.ERROR)
-    logging.getLogger("fontTools").setLevel(logging.ERROR)
-    doc = weasyprint.HTML(string=html, base_url=str(template_dir()), url_fetcher=_no_fetch)
+    for name in ("weasyprint", "weasyprint.progress", "fontTools"):
+        logging.getLogger(name).setLevel(logging.ERROR)
+    doc = weasyprint.HTML(string=html, base_url=str(template_dir()), url_fetcher=_url_fetcher())
     doc.write_pdf(str(path))
 
 
@@ -70,10 +98,17 @@ def render_report(
     paper: str,
     min_group_size: int,
     made: str,
+    pseudonymized: bool = False,
 ) -> None:
     """Write ``report.html`` and ``report.pdf`` for ``result`` into ``folder``."""
     context = build_context(
-        result, title=title, kind=kind, paper=paper, min_group_size=min_group_size, made=made
+        result,
+        title=title,
+        kind=kind,
+        paper=paper,
+        min_group_size=min_group_size,
+        made=made,
+        pseudonymized=pseudonymized,
     )
     html = render_html(context)
     (Path(folder) / "report.html").write_text(html, encoding="utf-8")

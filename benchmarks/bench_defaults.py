@@ -1,0 +1,271 @@
+"""Defaults by evidence: community recovery (NMI) against cost for the walk and skip-gram
+settings. Prints tables and JSON.
+
+LFR benchmark graphs (Lancichinetti, Fortunato & Radicchi 2008; networkx's generator, the
+parameters of ``bench_views.py``: n=1000, tau1 2.5, tau2 1.5, average degree 10, degree
+at most 50, communities of 20 to 100) at mixing 0.1 and 0.3, several seeds. One setting
+at a time is moved away from the configured defaults (walks per node, walk length,
+window, dimensions, epochs, and the clustering's PCA dimensions); every other setting
+stays at its default. Each row embeds both views, clusters them as the pipeline does
+and scores each view's groups against the planted communities with scikit-learn's NMI.
+
+Cost is the skip-gram work: walk tokens per view times epochs (the walks themselves cost
+the same number of steps), and the CPU seconds the row took (walks, skip-gram and
+clustering of both views, per graph). CPU seconds rather than wall seconds, because the
+machine is shared.
+
+Choice rule: per setting, the cheapest value whose mean NMI (over mixing levels and
+seeds, in the community view) is within 0.01 of that setting's best. The chosen values
+are then run together, and local and far are compared under them with more seeds.
+
+Run: ``.venv/bin/python benchmarks/bench_defaults.py [--seeds 3] [--final-seeds 8]
+[--only walks_per_node walk_length] [--json FILE]``.
+"""
+
+from __future__ import annotations
+
+import argparse
+import dataclasses
+import json
+import os
+import time
+from pathlib import Path
+from typing import Any
+
+import networkx as nx
+import numpy as np
+from sklearn.metrics import normalized_mutual_info_score
+
+from roles.cluster import cluster
+from roles.config import Config
+from roles.embed import embed_views
+from roles.graph import CSRGraph, to_csr
+from roles.pipeline import COMMUNITY_VIEW, stage_seeds
+
+DEFAULT = Config()
+MIXING = (0.1, 0.3)
+TOLERANCE = 0.01
+
+#: Values tried per setting; the default is always among them.
+GRID: dict[str, list[int]] = {
+    "walks_per_node": [2, 4, 6, 10, 15],
+    "walk_length": [10, 20, 30, 40, 80],
+    "window": [2, 3, 5, 8],
+    "dimensions": [16, 32, 64, 128],
+    "epochs": [1, 2, 3],
+    "reduce_to": [4, 8, 16, 32],
+}
+_SECTION = {
+    "walks_per_node": "walks",
+    "walk_length": "walks",
+    "window": "embedding",
+    "dimensions": "embedding",
+    "epochs": "embedding",
+    "reduce_to": "cluster",
+}
+
+
+def lfr(n: int, mu: float, seed: int) -> tuple[nx.Graph, np.ndarray]:
+    """networkx's LFR graph with the parameters of ``bench_views.py``; planted community
+    per node (the smallest community id where the generator lists several)."""
+    for attempt in range(20):
+        try:
+            g = nx.LFR_benchmark_graph(
+                n,
+                2.5,
+                1.5,
+                mu,
+                average_degree=10,
+                max_degree=50,
+                min_community=20,
+                max_community=100,
+                seed=seed + 1000 * attempt,
+            )
+            break
+        except nx.ExceededMaxIterations:
+            continue
+    else:
+        raise RuntimeError("LFR generation failed 20 times")
+    g.remove_edges_from(nx.selfloop_edges(g))
+    plain = nx.Graph()
+    plain.add_nodes_from(g)
+    plain.add_edges_from(g.edges())
+    truth = np.asarray([min(g.nodes[v]["community"]) for v in plain])
+    return plain, truth
+
+
+def with_setting(config: Config, name: str, value: int) -> Config:
+    section = _SECTION[name]
+    part = getattr(config, section)
+    return dataclasses.replace(config, **{section: dataclasses.replace(part, **{name: value})})
+
+
+def cost(config: Config, n: int) -> int:
+    """Skip-gram tokens per view: n * walks_per_node * walk_length * epochs."""
+    w = config.walks
+    return n * w.walks_per_node * w.walk_length * config.embedding.epochs
+
+
+def evaluate(config: Config, graphs: list[tuple[float, int, CSRGraph, np.ndarray]]) -> dict:
+    """NMI of each view against the planted communities, per mixing level, and CPU time."""
+    scores: dict[str, dict[float, list[float]]] = {
+        v: {mu: [] for mu in MIXING} for v in ("local", "far")
+    }
+    groups: dict[str, list[int]] = {"local": [], "far": []}
+    cpu = 0.0
+    for mu, seed, csr, truth in graphs:
+        run_config = dataclasses.replace(config, seed=seed)
+        c0 = time.process_time()
+        views = embed_views(csr, run_config, processes=1)
+        seeds = stage_seeds(run_config.seed)
+        for i, view in enumerate(("local", "far")):
+            grouping = cluster(
+                np.asarray(views[view].vectors),
+                min_cluster_size=config.cluster.min_cluster_size,
+                reduce_to=config.cluster.reduce_to,
+                seed=seeds[2 + i],
+            )
+            scores[view][mu].append(float(normalized_mutual_info_score(truth, grouping.labels)))
+            groups[view].append(grouping.n_groups)
+        cpu += time.process_time() - c0
+    out: dict[str, Any] = {"cpu_s_per_graph": round(cpu / len(graphs), 2)}
+    for view in ("local", "far"):
+        every = [x for mu in MIXING for x in scores[view][mu]]
+        out[view] = {
+            "by_mixing": {str(mu): round(float(np.mean(scores[view][mu])), 4) for mu in MIXING},
+            "mean": round(float(np.mean(every)), 4),
+            "se": round(float(np.std(every, ddof=1) / np.sqrt(len(every))), 4),
+            "groups": round(float(np.mean(groups[view])), 1),
+        }
+    return out
+
+
+def _row(label: str, value: Any, config: Config, n: int, res: dict) -> dict:
+    return {"setting": label, "value": value, "tokens_per_view": cost(config, n), **res}
+
+
+def print_rows(rows: list[dict], title: str) -> None:
+    print(f"\n{title}")
+    mus = " ".join(f"{'far ' + str(m):>8} {'local ' + str(m):>9}" for m in MIXING)
+    print(
+        f"{'setting':<16}{'value':>6}{'tokens':>10}{'cpu s':>7} {mus} "
+        f"{'far mean':>9} {'+-se':>6} {'local mean':>11} {'groups far':>10}"
+    )
+    for r in rows:
+        per = " ".join(
+            f"{r['far']['by_mixing'][str(m)]:>8.3f} {r['local']['by_mixing'][str(m)]:>9.3f}"
+            for m in MIXING
+        )
+        print(
+            f"{r['setting']:<16}{str(r['value']):>6}{r['tokens_per_view']:>10,}"
+            f"{r['cpu_s_per_graph']:>7.2f} {per} {r['far']['mean']:>9.3f} {r['far']['se']:>6.3f}"
+            f" {r['local']['mean']:>11.3f} {r['far']['groups']:>10}"
+        )
+
+
+def choose(rows: list[dict], view: str) -> tuple[int, float]:
+    """Cheapest value within TOLERANCE of the best mean NMI; rows are sorted by cost."""
+    best = max(r[view]["mean"] for r in rows)
+    for r in rows:
+        if r[view]["mean"] >= best - TOLERANCE:
+            return r["value"], best
+    raise AssertionError("unreachable")
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--n", type=int, default=1000)
+    ap.add_argument("--seeds", type=int, default=3, help="LFR graphs per mixing level")
+    ap.add_argument(
+        "--final-seeds",
+        type=int,
+        default=8,
+        help="graphs per mixing level "
+        "for the local-versus-far comparison under the chosen settings",
+    )
+    ap.add_argument("--only", nargs="+", choices=list(GRID), help="settings to vary")
+    ap.add_argument("--json", metavar="FILE", help="also write the figures to FILE")
+    args = ap.parse_args()
+    view = COMMUNITY_VIEW
+    t_start = time.perf_counter()
+    graphs = []
+    for mu in MIXING:
+        for s in range(args.seeds):
+            g, truth = lfr(args.n, mu, seed=s + 1)
+            graphs.append((mu, s + 1, to_csr(g), truth))
+    print(
+        f"LFR n={args.n}, mixing {MIXING}, {args.seeds} graphs per mixing level; "
+        f"community view: {view}; load average {os.getloadavg()[0]:.1f} on "
+        f"{os.cpu_count()} cores"
+    )
+    tables: dict[str, list[dict]] = {}
+    chosen: dict[str, int] = {}
+    cache: dict[tuple, dict] = {}
+    for name in args.only or list(GRID):
+        rows = []
+        for value in GRID[name]:
+            config = with_setting(DEFAULT, name, value)
+            key = (config.walks, config.embedding, config.cluster)
+            if key not in cache:
+                cache[key] = evaluate(config, graphs)
+            rows.append(_row(name, value, config, args.n, cache[key]))
+        # Cheaper first: walk settings and epochs by tokens, the others by CPU time
+        # (dimensions and window do not change the token count).
+        rows.sort(key=lambda r: (r["tokens_per_view"], r["cpu_s_per_graph"], r["value"]))
+        if name in ("dimensions", "window", "reduce_to"):
+            rows.sort(key=lambda r: r["value"])
+        tables[name] = rows
+        chosen[name], best = choose(rows, view)
+        default_value = getattr(getattr(DEFAULT, _SECTION[name]), name)
+        print_rows(
+            rows,
+            f"{name} (default {default_value}); best {view} mean {best:.3f}, "
+            f"cheapest within {TOLERANCE}: {chosen[name]}",
+        )
+    recommended = DEFAULT
+    for name, value in chosen.items():
+        recommended = with_setting(recommended, name, value)
+    together = evaluate(recommended, graphs)
+    base = cache[(DEFAULT.walks, DEFAULT.embedding, DEFAULT.cluster)]
+    combo = [
+        _row("defaults", "-", DEFAULT, args.n, base),
+        _row("chosen together", "-", recommended, args.n, together),
+    ]
+    print_rows(combo, "the chosen values together, against the defaults")
+    print(f"chosen: {json.dumps(chosen)}")
+    final_graphs = []
+    for mu in MIXING:
+        for s in range(args.final_seeds):
+            g, truth = lfr(args.n, mu, seed=100 + s)
+            final_graphs.append((mu, 100 + s, to_csr(g), truth))
+    final = evaluate(recommended, final_graphs)
+    print(
+        f"\nlocal versus far under the chosen settings, {args.final_seeds} new graphs per "
+        "mixing level"
+    )
+    for v in ("local", "far"):
+        per = ", ".join(f"mixing {m}: {final[v]['by_mixing'][str(m)]:.3f}" for m in MIXING)
+        print(
+            f"{v:<6} {per}; mean {final[v]['mean']:.3f} +- {final[v]['se']:.3f}; "
+            f"groups {final[v]['groups']}"
+        )
+    out = {
+        "n": args.n,
+        "mixing": MIXING,
+        "seeds": args.seeds,
+        "community_view": view,
+        "tables": tables,
+        "chosen": chosen,
+        "together": combo,
+        "final": {"seeds": args.final_seeds, **final},
+        "recommended": recommended.as_dict(),
+        "wall_s": round(time.perf_counter() - t_start, 1),
+    }
+    print("\nJSON")
+    print(json.dumps(out))
+    if args.json:
+        Path(args.json).write_text(json.dumps(out, indent=1) + "\n", encoding="utf-8")
+
+
+if __name__ == "__main__":
+    main()

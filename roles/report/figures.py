@@ -608,7 +608,7 @@ def dependents_chart(
             f"counts the {w['members']} that would be cut off from the main body of their part "
             "of the network. "
         )
-    caption += "Check each case with the people concerned before acting on it."
+    caption += "Check each case with those concerned before acting on it."
     return Figure(svg, caption)
 
 

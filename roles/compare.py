@@ -46,12 +46,29 @@ def _neighbours(vectors: np.ndarray, k: int) -> np.ndarray:
     # Euclidean distance on unit vectors orders neighbours as cosine similarity does.
     nn = NearestNeighbors(n_neighbors=k + 1).fit(x)
     idx = nn.kneighbors(x, return_distance=False)
-    out = np.empty((x.shape[0], k), dtype=np.int64)
-    for i, row in enumerate(idx):
-        row = row[row != i][:k]
-        out[i, : len(row)] = row
-        if len(row) < k:  # duplicates of i pushed it out of its own list
-            out[i, len(row) :] = idx[i, -1]
+    # Drop the point itself, keeping the order of the others; when duplicates pushed it
+    # out of its own list, the first k neighbours remain.
+    other = idx != np.arange(x.shape[0])[:, None]
+    first = np.argsort(~other, axis=1, kind="stable")[:, :k]
+    return np.take_along_axis(idx, first, axis=1).astype(np.int64, copy=False)
+
+
+def _jaccard_rows(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """|A ∩ B| / |A ∪ B| of the sets of entries of each row pair (rows of equal width)."""
+    a, b = np.sort(a, axis=1), np.sort(b, axis=1)
+    # First occurrence of each value in a sorted row: the row's set.
+    a_first = np.ones(a.shape, dtype=bool)
+    a_first[:, 1:] = a[:, 1:] != a[:, :-1]
+    b_first = np.ones(b.shape, dtype=bool)
+    b_first[:, 1:] = b[:, 1:] != b[:, :-1]
+    out = np.empty(a.shape[0])
+    step = max(1, 2_000_000 // max(1, a.shape[1] * b.shape[1]))  # bounded scratch memory
+    for lo in range(0, a.shape[0], step):
+        sa, sb = a[lo : lo + step], b[lo : lo + step]
+        found = (sa[:, :, None] == sb[:, None, :]).any(axis=2) & a_first[lo : lo + step]
+        inter = found.sum(axis=1)
+        union = a_first[lo : lo + step].sum(axis=1) + b_first[lo : lo + step].sum(axis=1) - inter
+        out[lo : lo + step] = inter / union
     return out
 
 
@@ -67,12 +84,7 @@ def neighbour_overlap(a: np.ndarray, b: np.ndarray, *, k: int = 10) -> np.ndarra
     if n < 2:
         return np.ones(n)
     k = max(1, min(k, n - 1))
-    na, nb = _neighbours(a, k), _neighbours(b, k)
-    out = np.empty(n)
-    for i in range(n):
-        sa, sb = set(na[i].tolist()), set(nb[i].tolist())
-        out[i] = len(sa & sb) / len(sa | sb)
-    return out
+    return _jaccard_rows(_neighbours(a, k), _neighbours(b, k))
 
 
 def compare_views(

@@ -33,3 +33,41 @@ def test_partition_scores_match_scikit_learn():
     assert c.nmi == normalized_mutual_info_score(la, lb)
     assert c.contingency.sum() == 60 and c.contingency.shape == (3, 4)
     assert c.k == 5
+
+
+def _overlap_by_sets(a, b, k):
+    # Reference: the definition written out with Python sets and scikit-learn's
+    # exact neighbour search on unit vectors (Jaccard 1912: |A & B| / |A | B|).
+    from sklearn.neighbors import NearestNeighbors
+
+    def lists(x):
+        x = x / np.linalg.norm(x, axis=1, keepdims=True)
+        idx = NearestNeighbors(n_neighbors=k + 1).fit(x).kneighbors(x, return_distance=False)
+        return [[j for j in row if j != i][:k] for i, row in enumerate(idx)]
+
+    la, lb = lists(a), lists(b)
+    return np.array(
+        [len(set(p) & set(q)) / len(set(p) | set(q)) for p, q in zip(la, lb, strict=True)]
+    )
+
+
+def test_overlap_matches_the_set_definition():
+    rng = np.random.default_rng(11)
+    a = rng.normal(size=(300, 6))
+    b = a + rng.normal(scale=0.5, size=a.shape)  # related views: overlaps spread over [0, 1]
+    got = neighbour_overlap(a, b, k=7)
+    want = _overlap_by_sets(a, b, 7)
+    assert np.array_equal(got, want)
+    assert 0.0 < got.mean() < 1.0
+
+
+def test_overlap_with_duplicate_points():
+    # Repeated rows tie at distance zero and may push a row out of its own list; each
+    # row still gets k neighbours other than itself, as in the set definition.
+    rng = np.random.default_rng(5)
+    base = rng.normal(size=(40, 4))
+    a = np.vstack([base, base[:10], np.repeat(base[:1], 6, axis=0)])  # 7 copies of row 0
+    b = np.vstack([base[::-1], base[:10], np.repeat(base[:1], 6, axis=0)])
+    got = neighbour_overlap(a, b, k=4)
+    assert np.array_equal(got, _overlap_by_sets(a, b, 4))
+    assert np.all((got >= 0) & (got <= 1))

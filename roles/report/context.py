@@ -42,6 +42,8 @@ _BASE = {
     "upstream": "upstream",
     "downstream": "downstream",
     "if_lost": "if removed",
+    "hub_text": "many ties meet at this one member",
+    "periphery": "a member at the edge of the network, or ties that were not recorded",
 }
 
 VOCABULARY: dict[str, dict[str, str]] = {
@@ -59,6 +61,9 @@ VOCABULARY: dict[str, dict[str, str]] = {
         "Communities": "Teams",
         "network": "organisation",
         "if_lost": "if unavailable",
+        "hub_text": "much of the team's work may run through this one person",
+        "periphery": "a newcomer, a specialist, part-time work or simply working ties that "
+        "were not recorded",
     },
     "supply": {
         **_BASE,
@@ -76,6 +81,9 @@ VOCABULARY: dict[str, dict[str, str]] = {
         "upstream": "towards its suppliers",
         "downstream": "towards its customers",
         "if_lost": "if it fails",
+        "hub_text": "many supply ties meet at this one firm",
+        "periphery": "a small or occasional supplier or customer, or supply ties that were "
+        "not recorded",
     },
     "general": dict(_BASE),
 }
@@ -273,7 +281,7 @@ def _roles(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
     pos = {n: i for i, n in enumerate(names)}
     annotate = [pos[n] for n in (s["hubs"][:3] + s["bridges"][:3]) if n in pos]
     figure = None
-    if len(connected):
+    if len(connected) and result.summary.get("communities", 0) >= 2:
         figure = figures.role_map(
             connected.within_z.to_numpy(dtype=float),
             connected.participation.to_numpy(dtype=float),
@@ -333,8 +341,12 @@ def _dependencies(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
 # ----------------------------------------------------------------------- views
 
 
-def _reading(r: Mapping[str, Any], moved: bool) -> str:
+def _reading(r: Mapping[str, Any], moved: bool, grouped: bool) -> str:
     """One line on what a low neighbour overlap usually means for this member."""
+    if not grouped:
+        if r["degree"] <= 2:
+            return "few ties, so neither view places it firmly"
+        return "its nearest neighbours differ between the views"
     if moved and r["p"] >= 0.5:
         return "ties in several groups, and each view sides with another: a go-between"
     if moved:
@@ -384,7 +396,7 @@ def _views(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
         r = _row(t, name)
         r["membership_value"] = float(t.loc[name].membership)
         r["moved"] = bool(m)
-        r["reading"] = _reading(r, bool(m))
+        r["reading"] = _reading(r, bool(m), both)
         disagree.append(r)
     contingency = None
     if cont.ndim == 2 and cont.size and both:
@@ -431,6 +443,9 @@ def _views(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
         "q_far": params.get("far", {}).get("q"),
         "low_agreement": int((connected.view_agreement < 0.2).sum()),
         "moved": int(moved.sum()),
+        # Our own reading aid: when the median member shares under a tenth of its
+        # neighbours, the views say little about who is near whom.
+        "weak": bool(len(connected) and float(connected.view_agreement.median()) < 0.1),
         "both": both,
         "connected": len(connected),
     }
@@ -451,8 +466,14 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
     shown = sorted((g for g, n in sizes.items() if n >= min_group_size), key=lambda g: -sizes[g])
     hidden = [g for g in sizes if sizes[g] < min_group_size]
     ei = {str(g): float(x) for g, x in f.get("ei_index", {}).items() if str(g) in shown}
+    attr = str(f["attribute"])
     ei_rows = [
-        {"group": g, "size": sizes[g], "ei": _fmt(ei[g])}
+        {
+            "group": g,
+            "label": f"{attr} {g}" if len(g) <= 3 else g,
+            "size": sizes[g],
+            "ei": _fmt(ei[g]),
+        }
         for g in sorted(ei, key=lambda g: (ei[g], g))
     ]
     figure = None
@@ -660,7 +681,20 @@ def _first_looks(
                 "where": "section 3",
             }
         )
-    if clear is False:
+    named = {item["who"] for item in out}
+    formal = ctx["formal"]
+    hubs = [h for h in ctx["roles"]["hubs"] if h["node"] not in named]
+    if ctx["no_groups"]:
+        out.append(
+            {
+                "who": "",
+                "text": f"no clear {v['communities']} were found, so read the roles and "
+                f"dependencies, not the groups; {v['ties']} spread fairly evenly, or a chain "
+                "or tree of supply, give this result.",
+                "where": "section 2",
+            }
+        )
+    elif clear is False:
         out.append(
             {
                 "who": "",
@@ -670,27 +704,29 @@ def _first_looks(
                 "where": "section 2",
             }
         )
-    elif ctx["formal"] and ctx["formal"]["inward"] and len(out) < 3:
-        f = ctx["formal"]
-        g = f["inward"]
+    elif formal and formal["inward"]:
+        g = formal["inward"]
         out.append(
             {
-                "who": f"{f['attribute']} {g['group']}" if g["group"].isdigit() else g["group"],
-                "text": f"the most inward-looking {f['attribute']} (E-I index {g['ei']}): "
+                "who": g["label"],
+                "text": f"the most inward-looking {formal['attribute']} (E-I index {g['ei']}): "
                 f"most of its {v['ties']} stay inside it. Is that by design?",
                 "where": "section 2",
             }
         )
-    elif ctx["roles"]["hubs"] and len(out) < 3:
-        h = ctx["roles"]["hubs"][0]
+    if len(out) < 3 and hubs:
+        h = hubs[0]
+        where = f" of {v['community']} {h['community']}" if not ctx["no_groups"] else ""
         out.append(
             {
                 "who": h["node"],
-                "text": f"the strongest hub of {v['community']} {h['community']} "
-                f"({h['degree']} {v['ties']}); much of it runs through this {v['member']}.",
+                "text": f"the strongest hub{where} ({h['degree']} {v['ties']}): {v['hub_text']}.",
                 "where": "section 3",
             }
         )
+    for item in out:
+        if not item["who"]:
+            item["text"] = item["text"][:1].upper() + item["text"][1:]
     return out[:3]
 
 

@@ -200,3 +200,20 @@ def test_every_reference_points_to_an_id_of_the_same_figure(all_figures):
         ids = _ids(fig)
         refs = set(re.findall(r'(?:url\(#|href="#)([^"\)]+)', fig.svg))
         assert refs and refs <= ids
+
+
+def test_dense_point_layers_become_one_image_and_the_rest_stays_vector():
+    rng = np.random.default_rng(4)
+    n = F.RASTER_ABOVE + 200
+    roles = ["member"] * n + ["hub-like"] * 3
+    z = np.r_[rng.normal(size=n), [3.0, 3.5, 4.0]]
+    p = rng.uniform(size=n + 3)
+    fig = F.role_map(z, p, roles)
+    root = ET.fromstring(fig.svg)
+    images = list(root.iter(f"{SVG}image"))
+    assert len(images) == 1
+    href = images[0].get("{http://www.w3.org/1999/xlink}href") or images[0].get("href")
+    assert href.startswith("data:image/png;base64,")  # the only URL the renderer serves
+    # Markers are <use> elements: the three hubs, their legend entry and the tick
+    # marks, but not the 1,700 members.
+    assert 3 <= len(list(root.iter(f"{SVG}use"))) < 60

@@ -497,8 +497,8 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
                 f"a cell, the larger its share of the row. A row with one dark cell is one "
                 f"{v['community']}; a row spread out works across {v['communities']}."
                 + (
-                    f" {len(hidden)} groups of fewer than {min_group_size} {v['members']} "
-                    "are left out."
+                    f" {len(hidden)} group{'s' if len(hidden) != 1 else ''} of fewer than "
+                    f"{min_group_size} {v['members']} left out."
                     if hidden
                     else ""
                 )

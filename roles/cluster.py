@@ -2,9 +2,8 @@
 
 HDBSCAN (Campello, Moulavi & Sander 2013, as implemented by McInnes, Healy & Astels
 2017) leaves loosely held points as noise. Every node still gets a group here: noise
-points go to their most probable group by soft membership
-(``hdbscan.all_points_membership_vectors``), and the strength of that attachment is
-kept in ``membership``.
+points go to their most probable group by a vote of their nearest clustered
+neighbours, and the strength of that attachment is kept in ``membership``.
 """
 
 from __future__ import annotations
@@ -28,8 +27,8 @@ class Grouping:
         Group of each node, numbered from 0 by decreasing size. Every node has a group.
     membership : ndarray of float, shape (n,)
         How firmly the node belongs to its group, in [0, 1]: HDBSCAN's membership
-        strength for clustered points, the soft-membership probability for points
-        HDBSCAN called noise.
+        strength for clustered points; for points HDBSCAN called noise, the share of
+        the neighbour vote for the group times one minus the GLOSH outlier score.
     was_noise : ndarray of bool, shape (n,)
         Whether HDBSCAN left the node as noise before it was attached.
     n_groups : int
@@ -72,6 +71,29 @@ def _reduce(vectors: np.ndarray, dims: int, seed: int) -> np.ndarray:
     if target >= x.shape[1]:
         return x
     return PCA(n_components=target, random_state=seed).fit_transform(x)
+
+
+def _attach(
+    x: np.ndarray, hard: np.ndarray, outlier: np.ndarray, k: int = 10
+) -> tuple[np.ndarray, np.ndarray]:
+    """Group and strength of each noise point, from its nearest clustered points.
+
+    The group is the distance-weighted vote of the ``k`` nearest points HDBSCAN did
+    cluster; the strength is the winning vote share times ``1 - GLOSH outlier score``
+    (Campello et al. 2015), so a point far from every group keeps a low figure.
+    On LFR graphs this attached noise points far more accurately than
+    ``hdbscan.all_points_membership_vectors`` (benchmarks/bench_views.py).
+    """
+    from sklearn.neighbors import KNeighborsClassifier
+
+    core = hard >= 0
+    noise = ~core
+    knn = KNeighborsClassifier(n_neighbors=min(k, int(core.sum())), weights="distance")
+    knn.fit(x[core], hard[core])
+    proba = knn.predict_proba(x[noise])
+    labels = knn.classes_[proba.argmax(axis=1)].astype(np.int64)
+    score = np.nan_to_num(np.asarray(outlier, dtype=np.float64)[noise], nan=1.0)
+    return labels, proba.max(axis=1) * np.clip(1.0 - score, 0.0, 1.0)
 
 
 def _renumber_by_size(labels: np.ndarray) -> np.ndarray:
@@ -132,7 +154,6 @@ def cluster(
     clusterer = hdbscan.HDBSCAN(
         min_cluster_size=size,
         min_samples=min(size, 5),
-        prediction_data=True,
         core_dist_n_jobs=1,
     )
     with warnings.catch_warnings():
@@ -146,18 +167,7 @@ def cluster(
     membership = strength.copy()
     noise = hard < 0
     if noise.any():
-        if found == 1:
-            labels[noise] = 0
-            membership[noise] = 0.0
-        else:
-            with warnings.catch_warnings():
-                warnings.simplefilter("ignore")
-                soft = np.asarray(hdbscan.all_points_membership_vectors(clusterer))
-            soft = soft.reshape(n, found)
-            labels[noise] = soft[noise].argmax(axis=1)
-            # The raw probability, not renormalised: rows carry the chance of being an
-            # outlier too, so a point between groups keeps a low figure.
-            membership[noise] = soft[noise].max(axis=1)
+        labels[noise], membership[noise] = _attach(x, hard, clusterer.outlier_scores_)
     labels = _renumber_by_size(labels)
     return Grouping(
         labels=labels,

@@ -55,8 +55,12 @@ def test_karate_faction_leaders_lead_the_hub_list(karate_result):
 
 
 def test_betweenness_is_normalised_as_networkx_does(karate_result, karate):
-    # Reference: networkx.betweenness_centrality (normalized=True), Brandes (2001).
-    ref = nx.betweenness_centrality(karate, normalized=True)
+    # Reference: networkx.betweenness_centrality (normalized=True), Brandes (2001), with
+    # tie strength read as closeness: distance = 1 / weight (roles.measures.betweenness).
+    g = karate.copy()
+    for _, _, d in g.edges(data=True):
+        d["distance"] = 1.0 / d["weight"]
+    ref = nx.betweenness_centrality(g, normalized=True, weight="distance")
     got = karate_result.nodes.set_index("node").betweenness
     for node, value in ref.items():
         assert got[str(node)] == pytest.approx(value, abs=1e-9)

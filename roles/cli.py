@@ -126,13 +126,33 @@ def _add_report_options(p: argparse.ArgumentParser) -> None:
     )
 
 
+class _Parser(argparse.ArgumentParser):
+    """argparse with our one-line error shape: ``error: ...``, exit status 2."""
+
+    def error(self, message: str) -> None:  # type: ignore[override]
+        self.exit(2, f"error: {message} (see '{self.prog} --help')\n")
+
+
+def _interrupted(exc: BaseException) -> bool:
+    """Whether ``exc`` is, or was caused by, Ctrl-C (an import cut short re-raises it
+    as ImportError)."""
+    seen: set[int] = set()
+    cur: BaseException | None = exc
+    while cur is not None and id(cur) not in seen:
+        if isinstance(cur, KeyboardInterrupt):
+            return True
+        seen.add(id(cur))
+        cur = cur.__cause__ or cur.__context__
+    return False
+
+
 def build_parser() -> argparse.ArgumentParser:
-    parser = argparse.ArgumentParser(
+    parser = _Parser(
         prog="roles",
         description="Find a network's communities, the members that bridge them, its hubs "
         "and its single points of failure, and write a printed report.",
     )
-    sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
     rep = sub.add_parser(
         "report",
         help="the whole job: analyse a network and write the report",
@@ -234,11 +254,12 @@ def main(argv: list[str] | None = None) -> int:
             raise
         print(f"error: {exc}", file=sys.stderr)
         return 2
-    except KeyboardInterrupt:
-        if args.debug:
+    except BaseException as exc:
+        if args.debug or not _interrupted(exc):
             raise
         print(
-            "error: interrupted; nothing was written and earlier outputs are unchanged.",
+            "error: interrupted. The output folder holds either its earlier files or this "
+            "run's complete outputs, never a mix.",
             file=sys.stderr,
         )
         return 130

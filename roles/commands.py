@@ -55,6 +55,22 @@ def pseudonymize(graph: nx.Graph, prefix: str = "M") -> tuple[nx.Graph, dict[str
     return nx.relabel_nodes(graph, codes, copy=True), {c: n for n, c in codes.items()}
 
 
+def _check_key_file(key: Path, inputs: list[Path], out: Path) -> None:
+    real = key.resolve()
+    if any(real == p.resolve() for p in inputs):
+        raise InputError(
+            f"--key-file {str(key)!r} is one of the input files; choose a new "
+            "file name for the key."
+        )
+    if real.is_dir():
+        raise InputError(f"--key-file {str(key)!r} is a folder; give a file name.")
+    if out.resolve() in real.parents:
+        raise InputError(
+            f"--key-file {str(key)!r} lies inside the output folder; keep the "
+            "key apart from the report (for example in another folder)."
+        )
+
+
 def _progress(quiet: bool):  # noqa: ANN202 - small closure
     if quiet:
         return None
@@ -76,6 +92,8 @@ def report(args: argparse.Namespace) -> None:
         )
     inputs = [Path(args.edges)] + ([Path(args.nodes)] if args.nodes else [])
     out = OutputFolder(args.out, inputs=inputs)  # refuses a bad target before the work
+    if args.key_file:
+        _check_key_file(Path(args.key_file), inputs, Path(args.out))
     net = _load(args)
     graph = net.graph
     attributes = None

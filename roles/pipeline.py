@@ -196,6 +196,14 @@ def run(
             "the network has no ties between different members; nothing can be grouped. "
             "Check that the edge list has rows below its header."
         )
+    if group_by is not None:
+        columns = {c for attrs in (attributes or {}).values() for c in attrs}
+        if group_by not in columns:
+            known = ", ".join(sorted(columns)) or "none: give a nodes file with --nodes"
+            raise InputError(
+                f"there is no attribute column {group_by!r} to group by. "
+                f"Columns of the nodes file: {known}."
+            )
     graph = nx.relabel_nodes(graph, {n: str(n) for n in graph}, copy=True)
     seeds = stage_seeds(config.seed)
     timer = _Timer(progress)
@@ -303,21 +311,22 @@ def run(
     if group_by:
         from .formal import brokerage, crosstab, ei_index, formal_nmi
 
-        if group_by not in nodes.columns:
-            raise InputError(
-                f"the nodes file has no column {group_by!r} to group by; "
-                "name one of its columns with --group-by."
-            )
-        groups = dict(zip(names, nodes[group_by].astype(str), strict=True))
+        # Members with no value in the column belong to no formal group.
+        groups = {
+            name: str(value)
+            for name, value in zip(names, nodes[group_by], strict=True)
+            if str(value).strip() != ""
+        }
+        tied = {k: c for k, c in community_of.items() if c > 0}  # members with ties
         with timer.stage("formal groups"):
             brk = brokerage(graph, groups)
             for col in brk.columns:
                 nodes[col] = brk.loc[names, col].to_numpy()
             extras["formal"] = {
                 "attribute": group_by,
-                "nmi": formal_nmi(groups, community_of),
+                "nmi": formal_nmi(groups, tied),
                 "ei_index": ei_index(graph, groups),
-                "crosstab": crosstab(groups, community_of),
+                "crosstab": crosstab(groups, tied),
             }
 
     bridges = rank_bridges(table)

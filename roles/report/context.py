@@ -437,6 +437,11 @@ def _views(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
         "projection": projection,
         "disagree": disagree,
         "community_view": s.get("community_view", "far"),
+        # The chosen view first.
+        "modularity": sorted(
+            ((view, _fmt(q, 3)) for view, q in (s.get("view_modularity") or {}).items()),
+            key=lambda vq: vq[0] != s.get("community_view"),
+        ),
         "p_local": params.get("local", {}).get("p"),
         "q_local": params.get("local", {}).get("q"),
         "p_far": params.get("far", {}).get("p"),
@@ -524,6 +529,7 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
     if result.summary.get("communities", 0) < 2:
         nmi = float("nan")
     return {
+        "cuts": _cuts(cross, shown) if np.isfinite(nmi) else [],
         "attribute": str(f["attribute"]),
         "nmi": _fmt(nmi),
         "nmi_words": _nmi_words(nmi) if np.isfinite(nmi) else "cannot be compared with it",
@@ -535,6 +541,26 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
         "shown": len(shown),
         "brokers": brokers,
     }
+
+
+def _cuts(cross: Mapping[str, Mapping[str, int]], shown: list[str]) -> list[dict[str, Any]]:
+    """Communities that draw substantially on more than one formal group.
+
+    "Substantially": the second-largest group holds at least a fifth of the community
+    (our own reading aid). Only groups of at least --min-group-size are counted.
+    """
+    by_comm: dict[str, dict[str, int]] = {}
+    for g in shown:
+        for c, n in cross[g].items():
+            if str(c) != "0" and n > 0:
+                by_comm.setdefault(str(c), {})[g] = int(n)
+    out = []
+    for c, groups in sorted(by_comm.items(), key=lambda kv: (-sum(kv[1].values()), kv[0])):
+        ranked = sorted(groups.items(), key=lambda kv: (-kv[1], kv[0]))
+        total = sum(groups.values())
+        if len(ranked) >= 2 and ranked[1][1] >= 0.2 * total:
+            out.append({"community": c, "groups": [{"group": g, "n": n} for g, n in ranked[:3]]})
+    return out[:3]
 
 
 # -------------------------------------------------------------------- method
@@ -781,7 +807,7 @@ def build_context(
         "top": TOP,
         "fmt": _fmt,
         "clear": clear,
-        "no_groups": groups_found == 0,
+        "no_groups": not s["grouped"] if "grouped" in s else groups_found == 0,
         "isolated": s.get("isolated", {}).get("count", 0),
     }
     ctx["communities"] = _communities(result, v)

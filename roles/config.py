@@ -28,6 +28,7 @@ __all__ = [
     "EmbeddingConfig",
     "ViewConfig",
     "ClusterConfig",
+    "ConfidenceConfig",
     "Config",
     "load_config",
     "config_from_mapping",
@@ -133,6 +134,18 @@ class ClusterConfig:
 
 
 @dataclass(frozen=True)
+class ConfidenceConfig:
+    """Re-runs with other seeds (stability) and randomised copies (structure test)."""
+
+    runs: int = 3
+    randomisations: int = 20
+
+    def __post_init__(self) -> None:
+        _check_int("[confidence]", "runs", self.runs, 0, 50)
+        _check_int("[confidence]", "randomisations", self.randomisations, 0, 1000)
+
+
+@dataclass(frozen=True)
 class Config:
     """The whole effective configuration of one run."""
 
@@ -142,6 +155,7 @@ class Config:
     local: ViewConfig = field(default_factory=_local_default)
     far: ViewConfig = field(default_factory=_far_default)
     cluster: ClusterConfig = field(default_factory=ClusterConfig)
+    confidence: ConfidenceConfig = field(default_factory=ConfidenceConfig)
 
     def __post_init__(self) -> None:
         _check_int("the configuration", "seed", self.seed, 0, 2**32 - 1)
@@ -162,10 +176,16 @@ class Config:
             "embedding": dataclasses.asdict(self.embedding),
             "views": {name: {"p": view.p, "q": view.q} for name, view in self.views.items()},
             "cluster": dataclasses.asdict(self.cluster),
+            "confidence": dataclasses.asdict(self.confidence),
         }
 
 
-_SECTIONS = {"walks": WalkConfig, "embedding": EmbeddingConfig, "cluster": ClusterConfig}
+_SECTIONS = {
+    "walks": WalkConfig,
+    "embedding": EmbeddingConfig,
+    "cluster": ClusterConfig,
+    "confidence": ConfidenceConfig,
+}
 
 
 def _fields(cls: type) -> list[str]:
@@ -186,7 +206,7 @@ def _section(data: Any, label: str, cls: type, **extra: Any) -> Any:
 
 def config_from_mapping(data: Mapping[str, Any]) -> Config:
     """Build a :class:`Config` from a parsed TOML document, refusing unknown keys."""
-    top = {"seed", "walks", "embedding", "views", "cluster"}
+    top = {"seed", "walks", "embedding", "views", "cluster", "confidence"}
     unknown = sorted(set(data) - top)
     if unknown:
         raise ConfigError(

@@ -265,6 +265,24 @@ def run(
             )
             overlap[idx] = comparison.overlap
 
+    confidence = None
+    if config.confidence.runs > 0 or config.confidence.randomisations > 0:
+        from .confidence import assess
+
+        with timer.stage("confidence"):
+            confidence = assess(
+                graph,
+                csr,
+                config,
+                community_of,
+                community_view,
+                view_labels["local"],
+                view_labels["far"],
+                runs=config.confidence.runs,
+                randomisations=config.confidence.randomisations,
+                seed=seeds[6],
+            )
+
     with timer.stage("modularity check"):
         louvain = _louvain(graph, seeds[5])
         louvain_of = {node: i for i, part in enumerate(louvain) for node in part}
@@ -297,6 +315,8 @@ def run(
         nodes[col] = table.loc[names, col].to_numpy()
     nodes.loc[~connected, "role"] = "no ties"
     nodes["view_agreement"] = np.round(overlap, 4)
+    if confidence is not None:
+        nodes["confidence"] = np.round(confidence.node_confidence, 4)
     nodes["degree"] = degree
     if attributes:
         cols: list[str] = []
@@ -374,6 +394,9 @@ def run(
         "versions": _versions(),
         "timings": timer.timings,
     }
+    if confidence is not None:
+        summary.update(confidence.as_summary())
+        extras["confidence"] = confidence
     if "formal" in extras:
         f = extras["formal"]
         summary["formal"] = {

@@ -43,8 +43,9 @@ __all__ = ["Embedding", "embed_walks", "embed_views", "untrained_nodes", "FEEDS"
 FEEDS = ("corpus_file", "iterable")
 _DEFAULT_FEED = "corpus_file"
 
-# Below this many walk tokens per view, starting two processes costs more than it saves
-# (measured in benchmarks/bench_walks.py: a fresh process needs about 2 s to start).
+# Below this many walk tokens per view, starting a second process costs more than it
+# saves: a fresh process needs about 1.9 CPU-seconds to import its code, and skip-gram
+# trains about 250,000 tokens per CPU-second (benchmarks/bench_walks.py).
 _PARALLEL_MIN_TOKENS = 1_000_000
 
 _log = logging.getLogger(__name__)
@@ -338,9 +339,10 @@ def embed_views(
     keep_walks : bool, default False
         Keep each view's walks in :attr:`Embedding.walks`.
     processes : int, optional
-        2 runs the views in two processes, 1 one after the other. By default two
-        processes are used unless the walks are small enough that starting a process
-        would cost more than it saves. The vectors are the same either way.
+        2 computes the far view in a second process while this one computes the local
+        view; 1 computes them one after the other. By default two processes are used
+        unless the walks are so short that starting a process would cost more than it
+        saves. The vectors are the same either way.
 
     Returns
     -------
@@ -349,7 +351,7 @@ def embed_views(
 
     Notes
     -----
-    The processes are started with the "spawn" method (numba's and gensim's threads
+    The second process is started with the "spawn" method (numba's and gensim's threads
     do not survive ``fork``). As with any spawned process, a script that calls this at
     import level must put that call under ``if __name__ == "__main__":``. Inside a
     daemonic process, which may not have children, the views run one after the other.
@@ -371,8 +373,11 @@ def embed_views(
         processes = 1
     if processes <= 1:
         return {name: _embed_view(*args) for name, args in jobs.items()}
-    # numba and gensim threads do not survive fork() safely; start clean processes.
+    # The far view goes to one fresh process while this one computes the local view:
+    # one process start instead of two. "spawn", because numba's and gensim's threads
+    # do not survive fork().
     context = multiprocessing.get_context("spawn")
-    with ProcessPoolExecutor(max_workers=min(processes, len(jobs)), mp_context=context) as pool:
-        futures = {name: pool.submit(_embed_view, *args) for name, args in jobs.items()}
-        return {name: future.result() for name, future in futures.items()}
+    with ProcessPoolExecutor(max_workers=1, mp_context=context) as pool:
+        far = pool.submit(_embed_view, *jobs["far"])
+        local = _embed_view(*jobs["local"])
+        return {"local": local, "far": far.result()}

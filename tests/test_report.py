@@ -61,6 +61,8 @@ def _karate() -> tuple[nx.Graph, dict]:
     nx.add_path(g, chain)
     for n in chain[1:]:
         attrs[n] = {"unit": "Mr. Hi"}
+    g.add_node("Member 98")  # no ties at all
+    attrs["Member 98"] = {"unit": "Mr. Hi"}
     return g, attrs
 
 
@@ -124,8 +126,9 @@ def test_cover_says_title_data_and_date(report):
     cover = pages[0]
     assert "Karate club <b>review</b>" in cover  # the title is text, not markup
     assert "karate & co.csv" in cover
-    # Zachary's club has 34 members and 78 ties; the chain adds 8 members and 8 ties.
-    assert "42" in cover and "86" in cover
+    # Zachary's club has 34 members and 78 ties; the chain adds 8 members and 8 ties,
+    # and one member has no ties.
+    assert "43 (1 without any working tie)" in cover and "86" in cover
     assert MADE in cover
 
 
@@ -250,12 +253,20 @@ def test_small_attribute_groups_are_never_reported(report, general_context):
     assert TINY in render_html(general_context)  # shown once the threshold allows it
 
 
+def test_formal_figure_leaves_out_members_without_ties(general_context):
+    # Member 98 has no ties: a "no ties" column would point at one person of Mr. Hi.
+    svg = general_context["formal"]["figure"].svg
+    texts = re.findall(r"<text[^>]*>([^<]*)</text>", svg)
+    assert "0" not in texts and "no ties" not in svg
+
+
 def test_dependents_table_lists_the_chain_by_hand_count(report):
     _, _, html = report
     # Brute force with networkx: remove member 0 and count the members outside the
     # largest remaining piece (the chain's 8, member 11, and members 4, 5, 6, 10, 16,
     # whose only way out in Zachary's club runs through member 0).
     g, _ = _karate()
+    g = g.subgraph(nx.node_connected_component(g, "Member 00")).copy()  # its component
     g.remove_node("Member 00")
     pieces = sorted((len(c) for c in nx.connected_components(g)), reverse=True)
     assert sum(pieces[1:]) == 14

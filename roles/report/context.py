@@ -483,7 +483,11 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
     ]
     figure = None
     if shown and result.summary.get("communities", 0) >= 2:
-        cols = sorted({str(c) for g in shown for c in cross[g]}, key=lambda c: (len(c), c))
+        # Members without ties (community 0) are left out: in a small team such a cell
+        # would point at one person.
+        cols = sorted(
+            {str(c) for g in shown for c in cross[g] if str(c) != "0"}, key=lambda c: (len(c), c)
+        )
         table = np.array([[cross[g].get(c, 0) for c in cols] for g in shown], dtype=float)
         keep = table.sum(axis=0) > 0
         cols = [c for c, k in zip(cols, keep, strict=True) if k]
@@ -491,7 +495,7 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
         figure = figures.contingency_heatmap(
             table,
             row_labels=shown,
-            col_labels=["no ties" if c == "0" else c for c in cols],
+            col_labels=cols,
             row_title=str(f["attribute"]),
             col_title=v["community"],
             key="formal",
@@ -500,7 +504,8 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
                 f"Rows are the values of '{f['attribute']}' given with the data, columns the "
                 f"{v['communities']} found; each number counts {v['members']}, and the darker "
                 f"a cell, the larger its share of the row. A row with one dark cell is one "
-                f"{v['community']}; a row spread out works across {v['communities']}."
+                f"{v['community']}; a row spread out works across {v['communities']}. "
+                f"{v['Members']} without {v['ties']} are left out."
                 + (
                     f" {len(hidden)} group{'s' if len(hidden) != 1 else ''} of fewer than "
                     f"{min_group_size} {v['members']} left out."

@@ -248,8 +248,8 @@ def _layout(sizes: np.ndarray, ties: np.ndarray, radii: np.ndarray, seed: int) -
     pos = nx.spring_layout(g, pos=start, weight="weight", seed=seed, iterations=200)
     xy = np.array([pos[i] for i in range(k)], dtype=float)
     span = np.ptp(xy, axis=0).max() or 1.0
-    xy = xy / span * radii.sum() * 0.9
-    gap = radii.max() * 0.12
+    xy = xy / span * radii.sum() * 1.2
+    gap = max(radii.max() * 0.25, float(np.median(radii)) * 0.8)  # room for the lines
     for _ in range(400):
         moved = False
         for i in range(k):

@@ -193,10 +193,11 @@ def embed_walks(
 
     References
     ----------
-    .. [1] gensim documentation, ``gensim.models.word2vec.Word2Vec``: "for a fully
-       deterministically-reproducible run, you must also limit the model to a single
-       worker thread (workers=1) ... [and] use of the PYTHONHASHSEED environment
-       variable to control hash randomization".
+    .. [1] gensim 4 documentation of ``gensim.models.word2vec.Word2Vec``, parameter
+       ``seed``: "for a fully deterministically-reproducible run, you must also limit
+       the model to a single worker thread (`workers=1`) ... reproducibility between
+       interpreter launches also requires use of the `PYTHONHASHSEED` environment
+       variable". A fixed ``hashfxn`` (CRC-32) stands in for that variable here.
     """
     from gensim.models import Word2Vec
 

@@ -36,8 +36,10 @@ from __future__ import annotations
 
 import dataclasses
 import math
+import multiprocessing
+import os
 import time
-from collections.abc import Hashable, Mapping, Sequence
+from collections.abc import Iterable, Iterator, Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any
 
@@ -80,9 +82,15 @@ PATTERN_JACCARD = 0.6
 
 # Budget of the structure test (see structure_budget and benchmarks/bench_confidence.py).
 _FULL_TEST_EDGES = 50_000
+_FULL_SWAPS_EDGES = 10_000
 _SWAPS_PER_EDGE = 10.0
 _SWAPS_PER_EDGE_LARGE = 3.0
 _MIN_RANDOMISATIONS_LARGE = 5
+
+# Below these sizes, starting worker processes (about 2 s each, mostly imports) costs
+# more than it saves; see benchmarks/bench_confidence.py.
+_PARALLEL_MIN_EDGES = 5_000
+_PARALLEL_MIN_TOKENS = 500_000
 
 # Budget of the stability check (see stability_budget).
 _FULL_RUNS_NODES = 20_000
@@ -236,12 +244,12 @@ class StructureTest:
 def structure_budget(edges: int, randomisations: int) -> tuple[int, float, str]:
     """Randomisations and swaps per tie the structure test spends on ``edges`` ties.
 
-    Up to 50,000 ties: every randomisation asked for, 10 swaps per tie. Beyond, the
-    total work is held near that of 50,000 ties: ``randomisations * 50,000 / edges``
-    randomisations, but at least 5 (or all asked for, if fewer), with 3 swaps per tie.
-    The cost of one randomisation (swaps and one Louvain run) grows with the tie count,
-    and the best modularity found in randomised networks settles after one to two swaps
-    per tie and varies less the larger the network (both measured in
+    Swaps: 10 per tie up to 10,000 ties, 3 per tie beyond. Randomisations: every one
+    asked for up to 50,000 ties; beyond, the total work is held near that of 50,000
+    ties, ``randomisations * 50,000 / edges``, but at least 5 (or all asked for, if
+    fewer). The best modularity found in randomised networks settles after one to two
+    swaps per tie and varies less the larger the network, while one randomisation
+    (swaps and a Louvain run) costs more the more ties there are (all measured in
     ``benchmarks/bench_confidence.py``), so fewer, shorter randomisations lose little.
 
     Returns
@@ -250,24 +258,19 @@ def structure_budget(edges: int, randomisations: int) -> tuple[int, float, str]:
     """
     if randomisations < 0:
         raise ValueError(f"randomisations must be >= 0; got {randomisations}")
-    if edges <= _FULL_TEST_EDGES:
-        return (
-            randomisations,
-            _SWAPS_PER_EDGE,
-            (f"{randomisations} randomised networks, {_SWAPS_PER_EDGE:g} swaps per tie"),
-        )
-    scaled = int(randomisations * _FULL_TEST_EDGES // edges)
-    used = min(randomisations, max(_MIN_RANDOMISATIONS_LARGE, scaled))
-    note = f"{used} randomised networks, {_SWAPS_PER_EDGE_LARGE:g} swaps per tie"
+    spe = _SWAPS_PER_EDGE if edges <= _FULL_SWAPS_EDGES else _SWAPS_PER_EDGE_LARGE
+    used = randomisations
+    if edges > _FULL_TEST_EDGES:
+        scaled = int(randomisations * _FULL_TEST_EDGES // edges)
+        used = min(randomisations, max(_MIN_RANDOMISATIONS_LARGE, scaled))
+    note = f"{used} randomised networks, {spe:g} swaps per tie"
     if used < randomisations:
         note += (
             f" (reduced from {randomisations} because the network has {edges:,} ties; rule: "
             f"about {randomisations} x {_FULL_TEST_EDGES:,} / ties, at least "
             f"{_MIN_RANDOMISATIONS_LARGE})"
         )
-    else:
-        note += f" (fewer swaps because the network has more than {_FULL_TEST_EDGES:,} ties)"
-    return used, _SWAPS_PER_EDGE_LARGE, note
+    return used, spe, note
 
 
 def _test_graph(graph: nx.Graph) -> nx.Graph:
@@ -282,6 +285,14 @@ def _best_modularity(h: nx.Graph, seed: int) -> float:
     return float(nx.community.modularity(h, parts, weight=None))
 
 
+def _build(nodes: list, edges: list) -> nx.Graph:
+    """The test graph, rebuilt the same way in every process (swaps depend on order)."""
+    g = nx.Graph()
+    g.add_nodes_from(nodes)
+    g.add_edges_from(edges)
+    return g
+
+
 def _randomised(h: nx.Graph, swaps_per_edge: float, seed: int) -> tuple[nx.Graph, bool]:
     """A degree-preserving randomisation of ``h`` and whether every swap was made."""
     r = h.copy()
@@ -294,13 +305,50 @@ def _randomised(h: nx.Graph, swaps_per_edge: float, seed: int) -> tuple[nx.Graph
     return r, True
 
 
+def _null_one(h: nx.Graph, job: tuple[float, int, int]) -> tuple[float, bool]:
+    swaps_per_edge, swap_seed, louvain_seed = job
+    r, complete = _randomised(h, swaps_per_edge, swap_seed)
+    return _best_modularity(r, louvain_seed), complete
+
+
+_worker_graph: nx.Graph | None = None
+
+
+def _init_null_worker(nodes: list, edges: list) -> None:
+    global _worker_graph
+    _worker_graph = _build(nodes, edges)
+
+
+def _null_job(job: tuple[float, int, int]) -> tuple[float, bool]:
+    assert _worker_graph is not None
+    return _null_one(_worker_graph, job)
+
+
+def _processes(requested: int | None, worth_it: bool, jobs: int) -> int:
+    """Worker processes to use: 2 when asked for or worth it, never inside a daemon."""
+    if multiprocessing.current_process().daemon or jobs < 2:
+        return 1
+    if requested is None:
+        return 2 if worth_it and (os.cpu_count() or 1) > 1 else 1
+    return max(1, min(int(requested), jobs))
+
+
+def _pool(processes: int, **kwargs: Any) -> Any:
+    from concurrent.futures import ProcessPoolExecutor
+
+    # numba and gensim threads do not survive fork(): start clean processes.
+    context = multiprocessing.get_context("spawn")
+    return ProcessPoolExecutor(max_workers=processes, mp_context=context, **kwargs)
+
+
 def structure_test(
     graph: nx.Graph,
-    labels: Mapping[Hashable, int],
+    labels: Mapping[Any, int],
     *,
     randomisations: int = 20,
     seed: int = 0,
     swaps_per_edge: float | None = None,
+    processes: int | None = None,
 ) -> StructureTest:
     """Test whether ``graph`` has community structure beyond what its degrees produce.
 
@@ -318,6 +366,10 @@ def structure_test(
         Seeds the swaps and Louvain runs (through ``numpy.random.SeedSequence``).
     swaps_per_edge : float, optional
         Double edge swaps per tie; by default chosen by :func:`structure_budget`.
+    processes : int, optional
+        Randomisations made at once, in separate processes. By default 2 from 5,000
+        ties on (on a machine with two or more cores), else 1. The figures do not
+        depend on it: each randomisation has its own seed.
 
     Returns
     -------
@@ -348,7 +400,9 @@ def structure_test(
     Modularity is unweighted because swaps move ties, and there is no single right way
     to carry weights along; the question here is whether the pattern of ties has
     groups. Direction is dropped as in the pipeline's own modularity figure. Memory is
-    O(E): one copy of the network at a time.
+    O(E): one copy of the network, and one randomised copy per process at a time.
+    Worker processes are started with "spawn": a script calling this at import level
+    must put the call under ``if __name__ == "__main__":``.
 
     References
     ----------
@@ -412,16 +466,24 @@ def structure_test(
         parts.setdefault(labels[v], set()).add(v)
     q_ours = float(nx.community.modularity(h, parts.values(), weight=None))
 
+    nodes, edges = list(h.nodes()), list(h.edges())
+    del h
+    base = _build(nodes, edges)
     seeds = np.random.SeedSequence(seed).spawn(used + 1)
-    q_best = _best_modularity(h, int(seeds[0].generate_state(1)[0]))
-    null: list[float] = []
-    short = 0
+    q_best = _best_modularity(base, int(seeds[0].generate_state(1)[0]))
+    jobs: list[tuple[float, int, int]] = []
     for child in seeds[1:]:
         swap_seed, louvain_seed = (int(x) for x in child.generate_state(2))
-        r, complete = _randomised(h, spe, swap_seed)
-        short += not complete
-        null.append(_best_modularity(r, louvain_seed))
-        del r
+        jobs.append((spe, swap_seed, louvain_seed))
+    workers = _processes(processes, m >= _PARALLEL_MIN_EDGES, len(jobs))
+    if workers > 1:
+        with _pool(workers, initializer=_init_null_worker, initargs=(nodes, edges)) as pool:
+            results = list(pool.map(_null_job, jobs))
+        note += f", {workers} at a time"
+    else:
+        results = [_null_one(base, job) for job in jobs]
+    null = [q for q, _ in results]
+    short = sum(not complete for _, complete in results)
 
     a = np.asarray(null)
     mean = float(a.mean()) if a.size else nan
@@ -648,14 +710,16 @@ def _connected(csr: CSRGraph) -> np.ndarray:
     return np.asarray(degree > 0)
 
 
-def _rerun(csr: CSRGraph, config: Config, idx: np.ndarray) -> dict[str, np.ndarray]:
+def _rerun(
+    csr: CSRGraph, config: Config, idx: np.ndarray, processes: int | None = None
+) -> dict[str, np.ndarray]:
     """Both views' group labels over ``idx``, made exactly as the pipeline makes them."""
     from .cluster import cluster
     from .embed import embed_views
     from .pipeline import stage_seeds
 
     seeds = stage_seeds(config.seed)
-    embeddings = embed_views(csr, config)
+    embeddings = embed_views(csr, config, processes=processes)
     out = {}
     for i, view in enumerate(_VIEWS):
         vectors = np.asarray(embeddings[view].vectors)[idx]
@@ -666,6 +730,21 @@ def _rerun(csr: CSRGraph, config: Config, idx: np.ndarray) -> dict[str, np.ndarr
             seed=seeds[2 + i],
         ).labels
     return out
+
+
+def _reruns(
+    csr: CSRGraph, config: Config, idx: np.ndarray, seeds: Iterable[int], workers: int
+) -> Iterator[dict[str, np.ndarray]]:
+    """Each re-run's labels, in seed order."""
+    configs = [dataclasses.replace(config, seed=s) for s in seeds]
+    if workers <= 1:
+        for cfg in configs:
+            yield _rerun(csr, cfg, idx)
+        return
+    with _pool(workers) as pool:
+        futures = [pool.submit(_rerun, csr, cfg, idx, 1) for cfg in configs]
+        for future in futures:
+            yield future.result()
 
 
 def _jaccard_parts(ref: np.ndarray, run: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -711,6 +790,7 @@ def stability(
     reference_labels: np.ndarray,
     seed: int,
     other_labels: np.ndarray | None = None,
+    processes: int | None = None,
 ) -> Stability:
     """Re-run the embedding and clustering with other seeds and measure what returns.
 
@@ -736,6 +816,13 @@ def stability(
     other_labels : ndarray of int, shape (n_nodes,), optional
         The main run's groups of the other view; gives the reference view agreement and
         the other view's seed-to-seed agreement.
+    processes : int, optional
+        Re-runs made at once, in separate processes (each then embeds its two views one
+        after the other). By default 2 when there are two or more re-runs of at least
+        500,000 walk steps each, on a machine with two or more cores; otherwise the
+        re-runs run one after the other and each embeds its two views side by side
+        when its walks are large enough (:func:`roles.embed.embed_views`). The figures
+        do not depend on it.
 
     Returns
     -------
@@ -753,8 +840,9 @@ def stability(
     0.6 to 0.75 a recurring pattern with doubtful membership, below 0.6 not to be
     trusted (wording of the ``fpc::clusterboot`` documentation).
 
-    Re-runs run one after the other; each uses two processes for its two views once the
-    walks are large enough (:func:`roles.embed.embed_views`).
+    Memory beyond the re-runs themselves is O(n). Worker processes are started with
+    "spawn": a script calling this at import level must put the call under
+    ``if __name__ == "__main__":``.
 
     References
     ----------
@@ -791,8 +879,11 @@ def stability(
     cross_ari: list[float] = []
     cross_nmi: list[float] = []
     within: dict[str, list[float]] = {v: [] for v in ref}
-    for s in seeds:
-        labels = _rerun(csr, dataclasses.replace(config, seed=s), idx)
+    tokens = csr.n_nodes * config.walks.walks_per_node * config.walks.walk_length
+    workers = _processes(processes, tokens >= _PARALLEL_MIN_TOKENS, len(seeds))
+    if workers > 1:
+        note = note.replace("one after the other", f"{workers} at a time")
+    for labels in _reruns(csr, config, idx, seeds, workers):
         node, best, _ = _jaccard_parts(ref[view], labels[view])
         node_sum += node
         best_runs.append(best)
@@ -892,7 +983,7 @@ def assess(
     graph: nx.Graph,
     csr: CSRGraph,
     config: Config,
-    communities: Mapping[Hashable, int],
+    communities: Mapping[Any, int],
     community_view: str,
     local_labels: np.ndarray,
     far_labels: np.ndarray,

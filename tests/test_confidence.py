@@ -66,7 +66,7 @@ def _assess(graph: nx.Graph, *, runs: int, randomisations: int) -> confidence.Co
     graph = nx.relabel_nodes(graph, str)
     config = Config(seed=11)
     ref = _reference(graph, config)
-    view = "far"  # the pipeline's community view (roles.pipeline.COMMUNITY_VIEW)
+    view = "far"  # either view would do; the far view's groups are checked here
     communities = dict(zip(graph.nodes(), ref[view].tolist(), strict=True))
     return confidence.assess(
         graph,
@@ -209,7 +209,8 @@ def test_tiny_graph_is_not_tested():
 
 def test_structure_budget_rule():
     # Our own rule (common practice, measured in benchmarks/bench_confidence.py).
-    assert confidence.structure_budget(50_000, 20)[:2] == (20, 10.0)
+    assert confidence.structure_budget(10_000, 20)[:2] == (20, 10.0)
+    assert confidence.structure_budget(50_000, 20)[:2] == (20, 3.0)
     assert confidence.structure_budget(100_000, 20)[:2] == (10, 3.0)
     assert confidence.structure_budget(1_000_000, 20)[:2] == (5, 3.0)
     assert confidence.structure_budget(1_000_000, 3)[:2] == (3, 3.0)
@@ -318,3 +319,28 @@ def test_stability_budget_rule():
     assert confidence.stability_budget(50_000, 5)[0] == 3
     assert confidence.stability_budget(500_000, 5)[0] == 2
     assert confidence.stability_budget(500_000, 1)[0] == 1
+
+
+# --------------------------------------------------------------------------------------
+# Worker processes change the time taken, not the figures
+# --------------------------------------------------------------------------------------
+
+
+def test_structure_test_same_figures_in_two_processes():
+    g = nx.ring_of_cliques(5, 5)
+    labels = {v: v // 5 for v in g}
+    one = confidence.structure_test(g, labels, randomisations=4, seed=3, processes=1)
+    two = confidence.structure_test(g, labels, randomisations=4, seed=3, processes=2)
+    assert one.null == two.null and one.modularity_best == two.modularity_best
+
+
+def test_stability_same_figures_in_two_processes():
+    g = nx.relabel_nodes(nx.ring_of_cliques(4, 8), str)
+    ref = _reference(g, Config(seed=2))
+    kwargs = dict(runs=2, view="local", reference_labels=ref["local"], seed=1,
+                  other_labels=ref["far"])  # fmt: skip
+    one = confidence.stability(to_csr(g), Config(seed=2), processes=1, **kwargs)
+    two = confidence.stability(to_csr(g), Config(seed=2), processes=2, **kwargs)
+    assert np.array_equal(one.confidence, two.confidence)
+    assert one.cross_view_ari == two.cross_view_ari
+    assert "2 at a time" in two.budget

@@ -247,6 +247,14 @@ def _row(t: pd.DataFrame, name: str) -> dict[str, Any]:
     return out
 
 
+def _role_words(role: str, n: int) -> str:
+    """'188 members', '2 hub-like', '1 without ties'."""
+    plural = {"member": "members", "connector hub": "connector hubs", "isolated": "isolated"}
+    if role == "no ties":
+        return f"{n:,} without ties"
+    return f"{n:,} {plural.get(role, role) if n != 1 else role}"
+
+
 def _neighbour_communities(result: Result, name: str, own: int) -> list[int]:
     """The communities of ``name``'s neighbours other than its own, most ties first."""
     g = result.graph
@@ -276,7 +284,10 @@ def _roles(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
     ordered = [r for r in _ROLE_ORDER if r in counts.index] + sorted(
         r for r in counts.index if r not in _ROLE_ORDER
     )
-    role_counts = [{"role": r, "count": int(counts[r])} for r in ordered]
+    role_counts = [
+        {"role": r, "count": int(counts[r]), "words": _role_words(r, int(counts[r]))}
+        for r in ordered
+    ]
     names = connected.node.tolist()
     pos = {n: i for i, n in enumerate(names)}
     annotate = [pos[n] for n in (s["hubs"][:3] + s["bridges"][:3]) if n in pos]
@@ -585,29 +596,29 @@ def _flatten(d: Mapping[str, Any], prefix: str = "") -> list[tuple[str, str]]:
 _COUNT_WORDS = {
     "rows_read": "rows read",
     "blank_rows_skipped": "blank rows skipped",
-    "self_loops_dropped": "ties from a member to itself dropped",
-    "duplicate_edges_merged": "repeated ties merged (weights added)",
+    "self_loops_dropped": "{ties} from a {member} to itself dropped",
+    "duplicate_edges_merged": "repeated {ties} merged (weights added)",
     "names_trimmed": "names with spaces trimmed",
     "columns_ignored": "columns ignored",
-    "zero_weight_edges_dropped": "ties of weight zero dropped",
-    "nodes": "members read",
-    "edges": "ties kept",
+    "zero_weight_edges_dropped": "{ties} of weight zero dropped",
+    "nodes": "{members} read",
+    "edges": "{ties} kept",
+    "nodes_only_in_nodes_file": "{members} only in the nodes file (kept without {ties})",
+    "nodes_missing_from_nodes_file": "{members} missing from the nodes file",
 }
 
 
-def _method(result: Result) -> dict[str, Any]:
+def _method(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
     s = result.summary
     inp = s.get("input", {})
-    counts = [
-        {"what": _COUNT_WORDS.get(k, k.replace("_", " ")), "n": _fmt(val)}
-        for k, val in inp.get("counts", {}).items()
-    ]
-    for key, words in (
-        ("nodes_only_in_nodes_file", "members only in the nodes file (kept without ties)"),
-        ("nodes_missing_from_nodes_file", "members missing from the nodes file"),
-    ):
+
+    def words(key: str) -> str:
+        return _COUNT_WORDS.get(key, key.replace("_", " ")).format(**v)
+
+    counts = [{"what": words(k), "n": _fmt(val)} for k, val in inp.get("counts", {}).items()]
+    for key in ("nodes_only_in_nodes_file", "nodes_missing_from_nodes_file"):
         if key in inp:
-            counts.append({"what": words, "n": _fmt(inp[key])})
+            counts.append({"what": words(key), "n": _fmt(inp[key])})
     grouping = [
         {
             "view": view,
@@ -820,6 +831,6 @@ def build_context(
     ctx["dependencies"] = _dependencies(result, v)
     ctx["views"] = _views(result, v)
     ctx["formal"] = _formal(result, v, min_group_size)
-    ctx["method"] = _method(result)
+    ctx["method"] = _method(result, v)
     ctx["first_looks"] = _first_looks(ctx, v, clear)
     return ctx

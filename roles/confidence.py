@@ -135,15 +135,8 @@ def _spread(values: Sequence[float]) -> dict[str, Any]:
 
 def _child_seeds(seed: int, n: int, *, avoid: int | None = None) -> list[int]:
     """``n`` 32-bit seeds from ``SeedSequence(seed)``, skipping ``avoid``."""
-    out: list[int] = []
-    children = np.random.SeedSequence(seed).spawn(n + 1)
-    for child in children:
-        value = int(child.generate_state(1)[0])
-        if value != avoid:
-            out.append(value)
-        if len(out) == n:
-            break
-    return out
+    values = [int(c.generate_state(1)[0]) for c in np.random.SeedSequence(seed).spawn(n + 1)]
+    return [v for v in values if v != avoid][:n]
 
 
 # --------------------------------------------------------------------------------------
@@ -158,7 +151,12 @@ class StructureTest:
     Attributes
     ----------
     clear : bool
-        Whether the network shows clear community structure (see :attr:`rule`).
+        Whether the network shows clear community structure (see :attr:`rule`). False
+        also when it could not be tested (see :attr:`tested`).
+    tested : bool
+        Whether a verdict could be reached: at least 2 randomisations of a network with
+        4 or more members with ties and 2 or more ties. When False, say "not tested",
+        not "no clear structure".
     rule : str
         The verdict rule in words.
     modularity_communities : float
@@ -189,6 +187,7 @@ class StructureTest:
     """
 
     clear: bool
+    tested: bool
     rule: str
     modularity_communities: float
     modularity_best: float
@@ -211,6 +210,7 @@ class StructureTest:
         """The figures for ``summary.json['structure']``."""
         return {
             "clear": bool(self.clear),
+            "tested": bool(self.tested),
             "rule": self.rule,
             "modularity": {
                 "communities": _num(self.modularity_communities),
@@ -231,7 +231,7 @@ class StructureTest:
             "p_value": _num(self.p_value),
             "randomisations": self.randomisations,
             "randomisations_requested": self.randomisations_requested,
-            "tested": {
+            "network_tested": {
                 "nodes": self.nodes,
                 "edges": self.edges,
                 "as": "undirected, unweighted, without self-loops and isolated nodes",
@@ -442,6 +442,7 @@ def structure_test(
     if n < 4 or m < 2:
         return StructureTest(
             clear=False,
+            tested=False,
             rule=_STRUCTURE_RULE,
             modularity_communities=nan,
             modularity_best=nan,
@@ -507,6 +508,7 @@ def structure_test(
         note += f"; {short} randomisations ran out of possible swaps"
     return StructureTest(
         clear=clear,
+        tested=bool(a.size >= 2),
         rule=_STRUCTURE_RULE,
         modularity_communities=q_ours,
         modularity_best=q_best,

@@ -344,3 +344,17 @@ def test_stability_same_figures_in_two_processes():
     assert np.array_equal(one.confidence, two.confidence)
     assert one.cross_view_ari == two.cross_view_ari
     assert "2 at a time" in two.budget
+
+
+def test_checks_switched_off_give_strict_json_and_no_verdict(monkeypatch):
+    g, ref = _two_blocks()
+    _fake_runs(monkeypatch, [])
+    communities = dict(zip(g.nodes(), ref.tolist(), strict=True))
+    conf = confidence.assess(g, to_csr(g), Config(), communities, "far", ref, ref, runs=0,
+                             randomisations=0, seed=0)  # fmt: skip
+    summary = json.loads(json.dumps(conf.as_summary(), allow_nan=False))
+    assert summary["structure"]["tested"] is False and summary["structure"]["clear"] is False
+    assert summary["stability"]["runs"] == 0
+    assert summary["stability"]["confidence"]["median"] is None
+    assert summary["stability"]["views"]["differ"] is None
+    assert np.all(np.isnan(conf.node_confidence))

@@ -409,3 +409,18 @@ def test_markup_that_points_outside_is_not_fetched(tmp_path):
     reader = pypdf.PdfReader(str(out))
     # Had any file been read, its image would be in the PDF.
     assert sum(len(p.images) for p in reader.pages) == 0
+
+
+def test_summary_says_how_many_communities_come_back(report, karate_result):
+    _, pages, _ = report
+    s = karate_result.summary
+    per = s["stability"]["communities"]  # written by roles.confidence
+    stable = sum(1 for c in per.values() if c["verdict"] == "stable")
+    glance = _flat(next(p for p in pages[1:] if "At a glance" in p))
+    if stable == len(per):
+        assert f"All{len(per)}comeback" in glance
+    else:
+        assert f"{stable}of{len(per)}comeback" in glance
+    method = _flat("\n".join(pages))
+    assert "Stabilityacrossseeds" in method and "Structuretest" in method
+    assert "Hennig,C.(2007)" in method

@@ -159,7 +159,8 @@ def _communities(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
     for (a, b), n in between.items():
         links[a][b] = n
         links[b][a] = n
-    has_conf = "confidence" in table.columns
+    stab = result.summary.get("stability") or {}
+    per = stab.get("communities") or {}
     rows = []
     for c in order[:TOP_COMMUNITIES]:
         part = found[found.community == c]
@@ -179,7 +180,7 @@ def _communities(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
                     else float("nan")
                 ),
                 "membership": _fmt(float(part.membership.mean())),
-                "confidence": _fmt(float(part.confidence.mean())) if has_conf else None,
+                "stability": _stability_words(per.get(str(int(c)))),
                 "key_members": list(key.head(3)),
                 "links": [{"label": int(o), "ties": n} for o, n in tied],
             }
@@ -216,10 +217,23 @@ def _communities(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
         "rest": rest_row,
         "count": len(order),
         "map": figure,
-        "has_confidence": has_conf,
+        "has_stability": bool(per),
+        "stable": sum(1 for x in per.values() if x.get("verdict") == "stable"),
+        "unstable": [int(k) for k in stab.get("unstable_communities", [])],
+        "median_confidence": _fmt((stab.get("confidence") or {}).get("median")),
+        "share_low": _fmt(100 * ((stab.get("confidence") or {}).get("share_below_0.5") or 0), 0),
+        "reruns": stab.get("runs", 0),
         "between_ties": int(sum(between.values())),
         "inside_ties": int(sum(inside.values())),
     }
+
+
+def _stability_words(c: Mapping[str, Any] | None) -> str:
+    """A community's re-run verdict (Hennig 2007 bands, from the pipeline) in words."""
+    if not c or c.get("verdict") in (None, "not re-run"):
+        return "–"
+    words = {"stable": "stable", "pattern": "recurs, members vary", "unstable": "unstable"}
+    return f"{words.get(c['verdict'], c['verdict'])} ({_fmt(c.get('jaccard'))})"
 
 
 # ------------------------------------------------------------------------ roles
@@ -437,7 +451,9 @@ def _views(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
             words=v,
         )
     params = s["parameters"].get("views", {})
+    differ = ((s.get("stability") or {}).get("views") or {}).get("differ")
     return {
+        "differ": differ,
         "ari": _fmt(views.get("ari")),
         "nmi": _fmt(views.get("nmi")),
         "words": _agreement_words(views.get("ari")),
@@ -637,6 +653,7 @@ def _method(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
         "total_time": _fmt(float(sum(s.get("timings", {}).values())), 1),
         "versions": list(s.get("versions", {}).items()),
         "structure": _structure(s.get("structure")),
+        "stability": _stability(s.get("stability")),
         "betweenness": _betweenness(s.get("betweenness")),
         "file": inp.get("file", "(given as a graph)"),
         "nodes_file": inp.get("nodes_file"),
@@ -652,7 +669,12 @@ def _structure(st: Any) -> dict[str, Any] | None:
     mod = st.get("modularity") or {}
     null = st.get("randomised") or {}
     rows = [
-        ("Verdict", "clear community structure" if st.get("clear") else "not clear"),
+        (
+            "Verdict",
+            "not tested"
+            if st.get("tested") is False
+            else ("clear community structure" if st.get("clear") else "not clear"),
+        ),
         ("Modularity of the communities", _fmt(mod.get("communities"))),
         ("Best modularity found in the network", _fmt(mod.get("best_found"))),
         (
@@ -666,6 +688,30 @@ def _structure(st: Any) -> dict[str, Any] | None:
     return {
         "rows": [(k, val) for k, val in rows if val not in ("–", "– ± –")],
         "rule": str(st.get("rule", "")),
+        "budget": str(st.get("budget", "")),
+    }
+
+
+def _stability(st: Any) -> dict[str, Any] | None:
+    """The seed-stability check's figures, as far as the pipeline gave them."""
+    if not isinstance(st, Mapping) or not st.get("runs"):
+        return None
+    conf = st.get("confidence") or {}
+    rows = [
+        ("Re-runs with other seeds", _fmt(st.get("runs"))),
+        ("View re-run", str(st.get("view", "–"))),
+        ("Median member confidence", _fmt(conf.get("median"))),
+        (
+            "Members below 0.5",
+            f"{_fmt(100 * conf['share_below_0.5'], 0)}%"
+            if conf.get("share_below_0.5") is not None
+            else "–",
+        ),
+    ]
+    return {
+        "rows": [(k, val) for k, val in rows if val != "–"],
+        "rule": str(st.get("community_rule", "")),
+        "measure": str(conf.get("measure", "")),
         "budget": str(st.get("budget", "")),
     }
 
@@ -808,7 +854,7 @@ def build_context(
     s = result.summary
     v = VOCABULARY.get(kind, VOCABULARY["general"])
     structure = s.get("structure") if isinstance(s.get("structure"), Mapping) else None
-    clear = structure.get("clear") if structure else None
+    clear = structure.get("clear") if structure and structure.get("tested", True) else None
     groups_found = s["views"].get("groups", {}).get(s.get("community_view", "far"), None)
     ctx: dict[str, Any] = {
         "title": title,

@@ -499,7 +499,7 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
     hidden = [g for g in sizes if sizes[g] < min_group_size]
     ei = {str(g): float(x) for g, x in f.get("ei_index", {}).items() if str(g) in shown}
     attr = str(f["attribute"])
-    ei_rows = [
+    ei_rows: list[dict[str, Any]] = [
         {
             "group": g,
             "label": f"{attr} {g}" if len(g) <= 3 else g,
@@ -567,8 +567,8 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
         "nmi_words": _nmi_words(nmi) if np.isfinite(nmi) else "cannot be compared with it",
         "figure": figure,
         "ei": ei_rows,
-        "inward": ei_rows[0] if ei_rows and ei[ei_rows[0]["group"]] < 0 else None,
-        "outward": ei_rows[-1] if ei_rows and ei[ei_rows[-1]["group"]] > 0 else None,
+        "inward": ei_rows[0] if ei_rows and ei[str(ei_rows[0]["group"])] < 0 else None,
+        "outward": ei_rows[-1] if ei_rows and ei[str(ei_rows[-1]["group"])] > 0 else None,
         "hidden": len(hidden),
         "shown": len(shown),
         "brokers": brokers,

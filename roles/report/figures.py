@@ -214,7 +214,7 @@ def _draw(key: str, size: tuple[float, float], paint: Any, ncols: int = 1) -> st
 
     import matplotlib
 
-    with matplotlib.rc_context(_rc(key)), warnings.catch_warnings():
+    with matplotlib.rc_context(_rc(key)), warnings.catch_warnings():  # type: ignore[arg-type]
         # A glyph missing from the font (emoji, rare scripts) is drawn as a box; the
         # text itself stays in the SVG, so the warning is noise here.
         warnings.simplefilter("ignore", UserWarning)
@@ -309,8 +309,7 @@ def community_map(
     xy = _layout(sizes_a, t, radii, seed)
     iu = np.triu_indices(k, 1)
     strengths = t[iu]
-    order = np.argsort(-strengths, kind="stable")
-    order = [o for o in order if strengths[o] > 0][:max_lines]
+    order = [int(o) for o in np.argsort(-strengths, kind="stable") if strengths[o] > 0][:max_lines]
     top = strengths[order[0]] if order else 1.0
     n_links = int(np.count_nonzero(strengths))
 

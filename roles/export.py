@@ -122,21 +122,24 @@ def write_embed_outputs(
             with open(folder / f"{name}.walks.tsv", "w", encoding="utf-8", newline="\n") as fh:
                 for walk in walks_to_names(emb.walks, csr.names):
                     fh.write("\t".join(walk) + "\n")
-        info[name] = {k: json_ready(v) for k, v in getattr(emb, "stats", {}).items()}
-    isolated = int(np.count_nonzero(np.diff(csr.indptr) == 0))
-    if csr.directed:
-        has_in = np.bincount(csr.indices, minlength=csr.n_nodes) > 0
-        isolated = int(np.count_nonzero((np.diff(csr.indptr) == 0) & ~has_in))
+        info[name] = {
+            "p": emb.p,
+            "q": emb.q,
+            "walks": emb.n_walks,
+            "steps": emb.n_steps,
+            "walks_ended_early": emb.n_stopped,
+            "untrained_nodes": emb.n_untrained,
+        }
+    first = next(iter(views.values()))
     _write_json(
         folder / "summary.json",
         {
             "nodes": csr.n_nodes,
             "ties": csr.n_arcs if csr.directed else csr.n_arcs // 2,
             "isolated": {
-                "count": isolated,
-                "treatment": "each isolated node gets walks of length one and so "
-                "never appears in a context window: its vector stays "
-                "at gensim's random initialisation, which means nothing",
+                "count": first.n_isolated,
+                "treatment": "a node without ties gets walks of length one, shares no walk "
+                "with another node and so gets a vector of zeros (it stays in the files)",
             },
             "parameters": {**config.as_dict(), "directed": csr.directed},
             "views": info,

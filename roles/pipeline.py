@@ -360,7 +360,8 @@ def run(
         "isolated": {
             "count": len(isolated),
             "names": isolated[:50],
-            "treatment": "walks of length one; vectors not clustered; community 0, role 'no ties'",
+            "treatment": "walks of length one and zero vectors; not clustered; "
+            "community 0, role 'no ties'",
         },
         "communities": n_comm,
         "grouped": grouped,

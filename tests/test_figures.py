@@ -217,3 +217,16 @@ def test_dense_point_layers_become_one_image_and_the_rest_stays_vector():
     # Markers are <use> elements: the three hubs, their legend entry and the tick
     # marks, but not the 1,700 members.
     assert 3 <= len(list(root.iter(f"{SVG}use"))) < 60
+
+
+def test_right_to_left_names_are_stored_in_display_order():
+    # Unicode Bidirectional Algorithm (UAX #9), left-to-right line: a right-to-left run
+    # is shown reversed, a number inside it keeps its own order.
+    assert F._visual("\u05e9\u05dc\u05d5\u05dd Noa") == "\u05dd\u05d5\u05dc\u05e9 Noa"
+    assert F._visual("ab \u05d0\u05d1 12 \u05d2\u05d3 cd") == "ab \u05d3\u05d2 12 \u05d1\u05d0 cd"
+    assert F._visual("Noa <b> & 12") == "Noa <b> & 12"
+    fig = F.dependents_chart(["\u05e9\u05dc\u05d5\u05dd Noa", "plain"], [2, 1])
+    root = ET.fromstring(fig.svg)
+    marked = [t for t in root.iter(f"{SVG}text") if t.get("unicode-bidi") == "bidi-override"]
+    # Only the right-to-left label is marked, so a browser does not reorder it again.
+    assert ["".join(t.itertext()) for t in marked] == ["\u05dd\u05d5\u05dc\u05e9 Noa"]

@@ -17,6 +17,7 @@ from __future__ import annotations
 
 import io
 import re
+import unicodedata
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any
@@ -159,10 +160,49 @@ def _rc(key: str) -> dict[str, Any]:
 _CONTROL = re.compile(r"[\x00-\x1f\x7f-\x9f]")
 
 
+def _is_rtl(ch: str) -> bool:
+    return unicodedata.bidirectional(ch) in ("R", "AL")
+
+
+def _visual(text: str) -> str:
+    """Right-to-left runs of ``text`` in display order, for a left-to-right line.
+
+    WeasyPrint draws SVG text in stored order, without the Unicode bidirectional
+    algorithm (UAX #9), so a Hebrew or Arabic name would print backwards. Each run of
+    right-to-left letters (with the spaces, punctuation and numbers between them) is
+    reversed here, numbers kept as they read, and :func:`_svg` marks those text
+    elements ``unicode-bidi: bidi-override`` so that browsers showing the HTML do not
+    reorder them a second time. This covers names in a left-to-right line, not full
+    UAX #9 (no embedding levels beyond one right-to-left run).
+    """
+    if not any(_is_rtl(c) for c in text):
+        return text
+    out: list[str] = []
+    i, n = 0, len(text)
+    while i < n:
+        if not _is_rtl(text[i]):
+            out.append(text[i])
+            i += 1
+            continue
+        j = i
+        last = i  # the run ends at its last right-to-left letter
+        while j < n and (_is_rtl(text[j]) or unicodedata.bidirectional(text[j]) not in ("L",)):
+            if _is_rtl(text[j]):
+                last = j
+            j += 1
+        run = text[i : last + 1]
+        tokens = re.findall(r"\d+(?:[.,]\d+)*|.", run)  # numbers stay left to right
+        out.append("".join(reversed(tokens)))
+        i = last + 1
+    return "".join(out)
+
+
 def _label(name: Any, width: int = 28) -> str:
-    """A node name fit for a figure: control characters as spaces, long names cut."""
+    """A node name fit for a figure: control characters as spaces, long names cut,
+    right-to-left runs in display order (see :func:`_visual`)."""
     text = _CONTROL.sub(" ", str(name)).strip()
-    return text if len(text) <= width else text[: width - 1] + "…"
+    text = text if len(text) <= width else text[: width - 1] + "…"
+    return _visual(text)
 
 
 _TAG = re.compile(r"<[^<>]+>")
@@ -184,6 +224,20 @@ def _prefix_ids(svg: str, key: str) -> str:
     return _TAG.sub(tag, svg)
 
 
+_TEXT = re.compile(r"<text\b([^>]*)>([^<]*)</text>")
+
+
+def _no_reordering(svg: str) -> str:
+    """Mark text holding right-to-left letters as already in display order."""
+
+    def mark(m: re.Match[str]) -> str:
+        if not any(_is_rtl(c) for c in m.group(2)):
+            return m.group(0)
+        return f'<text{m.group(1)} direction="ltr" unicode-bidi="bidi-override">{m.group(2)}</text>'
+
+    return _TEXT.sub(mark, svg)
+
+
 def _svg(fig: Any, key: str) -> str:
     import matplotlib.pyplot as plt
 
@@ -196,7 +250,7 @@ def _svg(fig: Any, key: str) -> str:
     text = text[text.index("<svg") :]
     # The RDF block names the writer only; it is noise inside HTML.
     text = re.sub(r"<metadata>.*?</metadata>\s*", "", text, count=1, flags=re.S)
-    return _prefix_ids(text.strip(), key)
+    return _prefix_ids(_no_reordering(text.strip()), key)
 
 
 def _figure(size: tuple[float, float], ncols: int = 1) -> tuple[Any, Any]:

@@ -17,6 +17,7 @@ from .config import load_config
 from .errors import InputError
 from .load import LoadedNetwork, load_edges, load_nodes
 from .output import OutputFolder
+from .progress import StageBar
 
 __all__ = ["report", "embed", "pseudonymize"]
 
@@ -71,12 +72,6 @@ def _check_key_file(key: Path, inputs: list[Path], out: Path) -> None:
         )
 
 
-def _progress(quiet: bool):  # noqa: ANN202 - small closure
-    if quiet:
-        return None
-    return lambda stage: log.info("… %s", stage)
-
-
 def report(args: argparse.Namespace) -> None:
     """``roles report``: load, analyse, write report.pdf/html, nodes.csv, summary.json,
     graph.graphml."""
@@ -114,14 +109,17 @@ def report(args: argparse.Namespace) -> None:
             back = {v: k for k, v in key.items()}
             attributes = {back[n]: a for n, a in attributes.items() if n in back}
         source["file"] = "(name withheld)"
+    bar = StageBar() if not args.quiet else None
     result = run(
         graph,
         config=config,
         attributes=attributes,
         group_by=args.group_by,
         source=source,
-        progress=_progress(args.quiet),
+        progress=bar,
     )
+    if bar:
+        bar("writing the report")
     made = datetime.now(timezone.utc).strftime("%Y-%m-%d %H:%M UTC")
     with out as folder:
         write_report_outputs(
@@ -138,6 +136,8 @@ def report(args: argparse.Namespace) -> None:
         from .output import write_csv
 
         write_csv(Path(args.key_file), ["code", "name"], sorted(key.items()))
+    if bar:
+        bar.close()
     log.info("wrote %s", Path(args.out) / "report.pdf")
 
 

@@ -130,10 +130,9 @@ def test_ctrl_c_during_a_report_keeps_earlier_outputs(tmp_path):
         text=True,
         start_new_session=True,  # its own process group, as a terminal's foreground job
     )
-    assert proc.stderr is not None
-    first = proc.stderr.readline()  # the first progress line: the pipeline has started
-    assert first.strip(), "the run ended before printing progress"
-    time.sleep(1.0)
+    # Not a terminal, so no progress bar to wait for: give the run time to get into
+    # its stages (imports and loading take about two seconds here).
+    time.sleep(4.0)
     if proc.poll() is not None:
         pytest.skip("the run finished before the interrupt could be sent")
     started = time.monotonic()

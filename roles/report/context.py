@@ -745,7 +745,8 @@ def _first_looks(
         out.append(
             {
                 "who": d["node"],
-                "text": f"{v['if_lost']}, cuts off {d['dependents']} other {v['members']}"
+                "text": f"{v['if_lost']}, cuts off {d['dependents']} other "
+                f"{v['member'] if d['dependents'] == 1 else v['members']}"
                 + (" from every source of supply" if ctx["s"]["directed"] else "")
                 + ". Check whether there is a second route.",
                 "where": "section 4",

@@ -210,11 +210,12 @@ def test_tiny_graph_is_not_tested():
 def test_structure_budget_rule():
     # Our own rule (common practice, measured in benchmarks/bench_confidence.py).
     assert confidence.structure_budget(10_000, 20)[:2] == (20, 10.0)
-    assert confidence.structure_budget(50_000, 20)[:2] == (20, 3.0)
-    assert confidence.structure_budget(100_000, 20)[:2] == (10, 3.0)
-    assert confidence.structure_budget(1_000_000, 20)[:2] == (5, 3.0)
-    assert confidence.structure_budget(1_000_000, 3)[:2] == (3, 3.0)
-    assert "reduced from 20" in confidence.structure_budget(1_000_000, 20)[2]
+    assert confidence.structure_budget(20_000, 20)[:2] == (20, 3.0)
+    assert confidence.structure_budget(40_000, 20)[:2] == (10, 3.0)
+    assert confidence.structure_budget(100_000, 20)[:2] == (5, 3.0)
+    assert confidence.structure_budget(1_000_000, 20)[:2] == (3, 3.0)
+    assert confidence.structure_budget(100_000, 3)[:2] == (3, 3.0)
+    assert "reduced from 20" in confidence.structure_budget(100_000, 20)[2]
 
 
 # --------------------------------------------------------------------------------------

@@ -96,6 +96,7 @@ def write_report_outputs(
         paper=paper,
         min_group_size=min_group_size,
         made=made,
+        pseudonymized=pseudonymized,
     )
 
 

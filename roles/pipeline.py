@@ -25,6 +25,10 @@ from .graph import to_csr
 
 __all__ = ["Result", "run", "choose_community_view", "stage_seeds"]
 
+#: Directed walks shorter than this share of the walk length (on average) are too
+#: short to group anyone; the views then walk the ties in both directions.
+SHORT_WALKS = 0.5
+
 #: The view whose groups become the communities when both views score the same.
 COMMUNITY_VIEW = "local"
 
@@ -124,7 +128,18 @@ def _versions() -> dict[str, str]:
             out[pkg] = version(pkg)
         except PackageNotFoundError:
             out[pkg] = "not installed"
+    if out["roles"] == "not installed":  # run from a source checkout
+        from . import __version__
+
+        out["roles"] = f"{__version__} (source tree)"
     return out
+
+
+def _betweenness_info(table: pd.DataFrame) -> dict[str, Any]:
+    import dataclasses
+
+    info = table.attrs.get("betweenness")
+    return dataclasses.asdict(info) if info is not None else {}
 
 
 def _louvain(graph: nx.Graph, seed: int) -> list[set]:
@@ -217,7 +232,21 @@ def run(
         isolated = [names[i] for i in np.flatnonzero(~connected)]
 
     with timer.stage("walks and embedding"):
+        walk_csr = csr
         embeddings = embed_views(csr, config)
+        walk_basis = "ties followed in their direction" if csr.directed else "ties"
+        if csr.directed:
+            steps = min(e.n_steps / max(e.n_walks, 1) for e in embeddings.values())
+            if steps < SHORT_WALKS * (config.walks.walk_length - 1):
+                # Walks in a supply network run downstream and stop at the last tier,
+                # which leaves too little context to group anyone: walk the ties both
+                # ways for the views (dependents still follow the direction).
+                walk_csr = to_csr(graph.to_undirected(as_view=True))
+                embeddings = embed_views(walk_csr, config)
+                walk_basis = (
+                    f"ties in both directions: walks that followed the direction ended "
+                    f"after {steps:.1f} of {config.walks.walk_length - 1} steps on average"
+                )
     vectors = {view: np.asarray(e.vectors) for view, e in embeddings.items()}
 
     groupings: dict[str, Grouping] = {}
@@ -272,7 +301,7 @@ def run(
         with timer.stage("confidence"):
             confidence = assess(
                 graph,
-                csr,
+                walk_csr,
                 config,
                 community_of,
                 community_view,
@@ -366,6 +395,7 @@ def run(
         "communities": n_comm,
         "grouped": grouped,
         "community_view": community_view,
+        "walks_over": walk_basis,
         "view_modularity": {
             v: round(m, 4) if np.isfinite(m) else None for v, m in view_modularity.items()
         },
@@ -390,6 +420,7 @@ def run(
             "louvain_groups": len(louvain),
             "nmi_with_louvain": round(louvain_nmi, 4),
         },
+        "betweenness": _betweenness_info(table),
         "parameters": {**config.as_dict(), "directed": graph.is_directed()},
         "input": dict(source or {}),
         "versions": _versions(),

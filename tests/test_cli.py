@@ -98,6 +98,10 @@ def test_supplier_demo_finds_the_planted_chokepoints(suppliers):
     assert int(rows["Ilmarin Drives"]["dependents"]) == 2
     summary = json.loads((suppliers / "summary.json").read_text(encoding="utf-8"))
     assert summary["directed"] is True
+    # Supply walks stop at the plants after a few tiers; the views then walk both ways
+    # and do find groups (a directed-only walk left every firm as noise).
+    assert summary["walks_over"].startswith("ties in both directions")
+    assert summary["grouped"] is True
     top = [d["node"] for d in summary["single_points_of_failure"][:3]]
     assert top == ["Varnholt Castings", "Quessa Polymers", "Ilmarin Drives"]
 

@@ -45,3 +45,32 @@ def test_too_few_points_form_no_group():
 def test_default_min_cluster_size(n, expected):
     # Our own rule (common practice, not a published one): max(5, round(sqrt(n) / 2)).
     assert default_min_cluster_size(n) == expected
+
+
+def test_renumbering_matches_the_rule():
+    # Rule of _renumber_by_size: largest group first, ties by smaller original label.
+    from roles.cluster import _renumber_by_size
+
+    labels = np.array([7, 3, 3, 7, 9, 9, 9, 1])
+    # Sizes: 9 -> 3, 3 -> 2, 7 -> 2, 1 -> 1; so 9->0, 3->1 (tie with 7, smaller), 7->2, 1->3.
+    assert _renumber_by_size(labels).tolist() == [2, 1, 1, 2, 0, 0, 0, 3]
+
+
+def test_fit_limit_at_or_above_n_changes_nothing():
+    x, _ = make_blobs(n_samples=400, centers=3, n_features=16, cluster_std=1.5, random_state=4)
+    full = cluster(x, seed=1)
+    same = cluster(x, seed=1, fit_limit=400)
+    assert np.array_equal(full.labels, same.labels)
+    assert np.array_equal(full.membership, same.membership)
+
+
+def test_sampled_fit_recovers_separated_blobs():
+    # Truth: the generating blob (scikit-learn make_blobs); the fit sees a third of them.
+    x, truth = make_blobs(n_samples=3000, centers=5, n_features=32, cluster_std=0.8, random_state=6)
+    g = cluster(x, seed=2, fit_limit=1000)
+    assert g.n_groups == 5
+    assert adjusted_rand_score(truth, g.labels) > 0.95
+    assert g.labels.shape == (3000,) and g.labels.min() >= 0
+    assert np.all((g.membership >= 0) & (g.membership <= 1))
+    again = cluster(x, seed=2, fit_limit=1000)
+    assert np.array_equal(g.labels, again.labels)  # same seed, same sample, same groups

@@ -19,7 +19,7 @@ from __future__ import annotations
 
 import math
 import numbers
-from collections.abc import Callable, Hashable, Mapping
+from collections.abc import Hashable, Mapping
 from dataclasses import dataclass
 from typing import Any
 
@@ -449,11 +449,420 @@ def _default_samples(n: int, exact_limit: int) -> int:
     return max(_MIN_SAMPLES, math.ceil(exact_limit**2 / max(n, 1)))
 
 
-def _inverse_weight(weight: str) -> Callable[[Hashable, Hashable, dict], float]:
-    def distance(u: Hashable, v: Hashable, data: dict) -> float:
-        return 1.0 / float(data.get(weight, 1.0))
+# Paths whose lengths differ by less than this share of the shortest length count as
+# equally short: 1/3 + 1/3 + 1/3 and 1 are then one length, as in exact arithmetic.
+# Rounding of a sum of h floats is below h * 1.1e-16 relative, so 1e-12 absorbs it for
+# paths up to thousands of steps, far below any difference real tie data can make.
+_PATH_TOL = 1e-12
 
-    return distance
+# Sources are summed in this many chunks per batch (fewer when there are fewer sources):
+# each chunk is summed by one thread in source order, then chunks are added in order, so
+# the result is the same for any thread count.
+_CHUNKS = 32
+
+
+@numba.njit(cache=True, inline="always")
+def _heap_up(key, node, where, i):  # pragma: no cover - compiled
+    k = key[i]
+    v = node[i]
+    while i > 0:
+        parent = (i - 1) >> 1
+        if key[parent] <= k:
+            break
+        key[i] = key[parent]
+        node[i] = node[parent]
+        where[node[i]] = i
+        i = parent
+    key[i] = k
+    node[i] = v
+    where[v] = i
+
+
+@numba.njit(cache=True, inline="always")
+def _heap_down(key, node, where, size, i):  # pragma: no cover - compiled
+    k = key[i]
+    v = node[i]
+    while True:
+        child = 2 * i + 1
+        if child >= size:
+            break
+        if child + 1 < size and key[child + 1] < key[child]:
+            child += 1
+        if key[child] >= k:
+            break
+        key[i] = key[child]
+        node[i] = node[child]
+        where[node[i]] = i
+        i = child
+    key[i] = k
+    node[i] = v
+    where[v] = i
+
+
+@numba.njit(cache=True)
+def _bfs_source(
+    s,
+    indptr,
+    indices,
+    rindptr,
+    rindices,
+    symmetric,
+    level,
+    sigma,
+    delta,
+    order,
+    pred,
+    pred_ptr,
+    acc,
+):  # pragma: no cover - compiled
+    """Brandes' accumulation from source ``s`` counting steps; adds into ``acc``.
+
+    Breadth-first; when a node leaves the queue, its predecessors are its in-neighbours
+    one step nearer the source. ``level`` is -1, ``sigma`` and ``delta`` 0 everywhere on
+    entry and again on exit.
+    """
+    level[s] = 0
+    order[0] = s
+    seen = 1
+    n_pred = 0
+    head = 0
+    while head < seen:
+        v = order[head]
+        pred_ptr[head] = n_pred
+        head += 1
+        up = level[v] - 1
+        nxt = level[v] + 1
+        sv = 1.0 if v == s else 0.0
+        if not symmetric:
+            for e in range(rindptr[v], rindptr[v + 1]):
+                u = rindices[e]
+                if level[u] == up:
+                    sv += sigma[u]
+                    pred[n_pred] = u
+                    n_pred += 1
+        for e in range(indptr[v], indptr[v + 1]):
+            w = indices[e]
+            if level[w] < 0:
+                level[w] = nxt
+                order[seen] = w
+                seen += 1
+            elif symmetric and level[w] == up:
+                sv += sigma[w]
+                pred[n_pred] = w
+                n_pred += 1
+        sigma[v] = sv
+    pred_ptr[seen] = n_pred
+    for i in range(seen - 1, 0, -1):
+        w = order[i]
+        coeff = (1.0 + delta[w]) / sigma[w]
+        for p in range(pred_ptr[i], pred_ptr[i + 1]):
+            u = pred[p]
+            delta[u] += sigma[u] * coeff
+        acc[w] += delta[w]
+    for i in range(seen):
+        w = order[i]
+        level[w] = -1
+        sigma[w] = 0.0
+        delta[w] = 0.0
+
+
+@numba.njit(cache=True)
+def _dijkstra_source(
+    s,
+    indptr,
+    indices,
+    length,
+    rindptr,
+    rindices,
+    rlength,
+    symmetric,
+    tol,
+    dist,
+    state,
+    sigma,
+    delta,
+    order,
+    pred,
+    pred_ptr,
+    hkey,
+    hnode,
+    where,
+    acc,
+):  # pragma: no cover - compiled
+    """Brandes' accumulation from source ``s`` along lengths; adds into ``acc``.
+
+    Dijkstra with an indexed binary heap. When a node is settled its distance is final,
+    and its predecessors are the settled in-neighbours ``u`` with
+    ``dist[u] + l(u, v) <= dist[v] * (1 + tol)``. On entry and exit ``dist`` is inf,
+    ``state`` 0 (1 = in the heap, 2 = settled), ``sigma`` and ``delta`` 0.
+    """
+    dist[s] = 0.0
+    state[s] = 1
+    hkey[0] = 0.0
+    hnode[0] = s
+    where[s] = 0
+    size = 1
+    settled = 0
+    n_pred = 0
+    while size > 0:
+        v = hnode[0]
+        dv = hkey[0]
+        size -= 1
+        if size > 0:
+            hkey[0] = hkey[size]
+            hnode[0] = hnode[size]
+            where[hnode[0]] = 0
+            _heap_down(hkey, hnode, where, size, 0)
+        state[v] = 2
+        order[settled] = v
+        pred_ptr[settled] = n_pred
+        settled += 1
+        limit = dv + tol * dv
+        sv = 1.0 if v == s else 0.0
+        if not symmetric:
+            for e in range(rindptr[v], rindptr[v + 1]):
+                u = rindices[e]
+                if state[u] == 2 and dist[u] + rlength[e] <= limit:
+                    sv += sigma[u]
+                    pred[n_pred] = u
+                    n_pred += 1
+        for e in range(indptr[v], indptr[v + 1]):
+            w = indices[e]
+            if state[w] == 2:
+                # Undirected: a settled neighbour is a predecessor if the tie is tight.
+                if symmetric and dist[w] + length[e] <= limit:
+                    sv += sigma[w]
+                    pred[n_pred] = w
+                    n_pred += 1
+                continue
+            d = dv + length[e]
+            if d < dist[w]:
+                dist[w] = d
+                if state[w] == 0:
+                    state[w] = 1
+                    hkey[size] = d
+                    hnode[size] = w
+                    size += 1
+                    _heap_up(hkey, hnode, where, size - 1)
+                else:
+                    hkey[where[w]] = d
+                    _heap_up(hkey, hnode, where, where[w])
+        sigma[v] = sv
+    pred_ptr[settled] = n_pred
+    for i in range(settled - 1, 0, -1):
+        w = order[i]
+        coeff = (1.0 + delta[w]) / sigma[w]
+        for p in range(pred_ptr[i], pred_ptr[i + 1]):
+            u = pred[p]
+            delta[u] += sigma[u] * coeff
+        acc[w] += delta[w]
+    for i in range(settled):
+        w = order[i]
+        dist[w] = np.inf
+        state[w] = 0
+        sigma[w] = 0.0
+        delta[w] = 0.0
+
+
+@numba.njit(cache=True, parallel=True)
+def _brandes(
+    indptr,
+    indices,
+    length,
+    rindptr,
+    rindices,
+    rlength,
+    weighted,
+    symmetric,
+    tol,
+    sources,
+    chunk_ptr,
+):  # pragma: no cover - compiled
+    """Per-chunk sums of Brandes' dependencies ``delta_s(v)`` over the given sources.
+
+    Row ``c`` of the result sums the sources ``sources[chunk_ptr[c]:chunk_ptr[c + 1]]``
+    in that order; chunks run in parallel, each on one thread.
+    """
+    n = indptr.shape[0] - 1
+    n_chunks = chunk_ptr.shape[0] - 1
+    acc = np.zeros((n_chunks, n))
+    for c in numba.prange(n_chunks):
+        sigma = np.zeros(n)
+        delta = np.zeros(n)
+        order = np.empty(n, np.int32)
+        pred = np.empty(rindices.shape[0], np.int32)
+        pred_ptr = np.empty(n + 1, np.int64)
+        if weighted:
+            dist = np.full(n, np.inf)
+            state = np.zeros(n, np.int8)
+            hkey = np.empty(n)
+            hnode = np.empty(n, np.int32)
+            where = np.empty(n, np.int32)
+            for j in range(chunk_ptr[c], chunk_ptr[c + 1]):
+                _dijkstra_source(
+                    sources[j],
+                    indptr,
+                    indices,
+                    length,
+                    rindptr,
+                    rindices,
+                    rlength,
+                    symmetric,
+                    tol,
+                    dist,
+                    state,
+                    sigma,
+                    delta,
+                    order,
+                    pred,
+                    pred_ptr,
+                    hkey,
+                    hnode,
+                    where,
+                    acc[c],
+                )
+        else:
+            level = np.full(n, -1, np.int32)
+            for j in range(chunk_ptr[c], chunk_ptr[c + 1]):
+                _bfs_source(
+                    sources[j],
+                    indptr,
+                    indices,
+                    rindptr,
+                    rindices,
+                    symmetric,
+                    level,
+                    sigma,
+                    delta,
+                    order,
+                    pred,
+                    pred_ptr,
+                    acc[c],
+                )
+    return acc
+
+
+def _adjacency(ties: _Ties, weighted: bool) -> tuple[np.ndarray, ...]:
+    """Out- and in-neighbour CSR arrays with lengths 1 / weight (rows sorted).
+
+    Returns ``(indptr, indices, length, rindptr, rindices, rlength)``; undirected ties
+    appear in both rows, and the in-neighbour arrays are then the same arrays.
+    """
+    n = ties.n
+    if ties.directed:
+        src, dst, w = ties.src, ties.dst, ties.w
+    else:
+        src = np.concatenate([ties.src, ties.dst])
+        dst = np.concatenate([ties.dst, ties.src])
+        w = np.concatenate([ties.w, ties.w])
+    # Same float as networkx's weight function 1.0 / weight, so lengths agree bit for bit.
+    length = 1.0 / w if weighted else np.ones(0)
+
+    def rows(a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        order = np.lexsort((b, a))
+        indptr = np.zeros(n + 1, dtype=np.int64)
+        np.cumsum(np.bincount(a, minlength=n), out=indptr[1:])
+        return indptr, b[order].astype(np.int32), length[order] if weighted else length
+
+    out = rows(src, dst)
+    back = rows(dst, src) if ties.directed else out
+    return (*out, *back)
+
+
+def _chunks(sizes: list[int]) -> np.ndarray:
+    """Chunk boundaries over consecutive batches of sources, no chunk across batches."""
+    per_batch = max(1, math.ceil(_CHUNKS / max(len(sizes), 1)))
+    bounds = [0]
+    start = 0
+    for size in sizes:
+        c = max(1, min(size, per_batch))
+        bounds.extend(start + (size * (i + 1)) // c for i in range(c))
+        start += size
+    return np.asarray(bounds, dtype=np.int64)
+
+
+def _estimates(
+    adjacency: tuple[np.ndarray, ...], weighted: bool, drawn: list[np.ndarray]
+) -> np.ndarray:
+    """Normalised betweenness from each batch of sources, shape (batches, n).
+
+    Scaled as networkx 3.6 scales ``k`` sources (``normalized=True``): a node that is
+    itself a source is averaged over the other ``k - 1`` sources, any other node over
+    all ``k``, both per ordered pair ``(s, t)`` with ``t`` not ``v`` (``n - 2``
+    targets). Each is unbiased given whether the node was drawn; with ``k = n`` this
+    is the exact ``1 / ((n - 1)(n - 2))``.
+    """
+    n = adjacency[0].shape[0] - 1
+    sizes = [len(d) for d in drawn]
+    bounds = _chunks(sizes)
+    symmetric = adjacency[0] is adjacency[3]
+    sources = np.concatenate(drawn).astype(np.int32)
+    acc = _brandes(*adjacency, weighted, symmetric, _PATH_TOL, sources, bounds)
+    est = np.zeros((len(drawn), n))
+    if n < 3:
+        return est  # no pair (s, t) with a third node between: all zero, as networkx
+    end = 0
+    for b, (size, src) in enumerate(zip(sizes, drawn, strict=True)):
+        end += size
+        rows = (bounds[1:] > end - size) & (bounds[1:] <= end)
+        est[b] = acc[rows].sum(axis=0)  # chunks in order: the same sum for any thread count
+        est[b] /= size * (n - 2)
+        est[b, src] *= size / (size - 1)
+    return est
+
+
+def _betweenness(
+    ties: _Ties, *, exact_limit: int, seed: int, samples: int | None
+) -> tuple[np.ndarray, BetweennessInfo]:
+    n = ties.n
+    weighted = bool(ties.w.size) and not bool(np.all(ties.w == ties.w[0]))
+    k = n if samples is None and n <= exact_limit else samples
+    if k is None:
+        k = _default_samples(n, exact_limit)
+    if k < n and k < 2:
+        raise ValueError(f"betweenness needs at least 2 sampled sources; got samples={k}.")
+    adjacency = _adjacency(ties, weighted)
+    if k >= n:
+        values = _estimates(adjacency, weighted, [np.arange(n)])[0]
+        return values, BetweennessInfo(
+            method="exact",
+            nodes=n,
+            k=n,
+            batches=1,
+            expected_error=0.0,
+            error_bound=0.0,
+            error_basis="exact: every node was a source.",
+            weighted=weighted,
+            exact_limit=exact_limit,
+            seed=seed,
+        )
+    batches = max(2, min(_MAX_BATCHES, k // 5))
+    sizes = [k // batches + (1 if b < k % batches else 0) for b in range(batches)]
+    rng = np.random.default_rng(seed)
+    # Each batch draws its sources independently (distinct within the batch).
+    est = _estimates(adjacency, weighted, [rng.choice(n, size=s, replace=False) for s in sizes])
+    # Batches of unequal size: weight each batch estimate by its sources.
+    wts = np.asarray(sizes, dtype=np.float64) / k
+    mean = wts @ est
+    se = np.sqrt(((est - mean) ** 2).T @ (wts**2) * batches / (batches - 1))
+    bound = math.sqrt(math.log(2 / 0.05) / (2 * k))
+    info = BetweennessInfo(
+        method="sampled",
+        nodes=n,
+        k=k,
+        batches=batches,
+        expected_error=float(se.max()) if n else 0.0,
+        error_bound=bound,
+        error_basis=(
+            f"{k} random sources in {batches} independent batches; expected_error is the "
+            "largest per-node standard error of the mean of the batch estimates; "
+            "error_bound is Hoeffding's 95% half-width for one node, sqrt(ln(40)/(2k))."
+        ),
+        weighted=weighted,
+        exact_limit=exact_limit,
+        seed=seed,
+    )
+    return mean, info
 
 
 def betweenness(
@@ -530,58 +939,8 @@ def betweenness(
     ({0: 0.0, 1: 1.0, 2: 0.0}, 'exact')
     """
     ties = _ties(G, weight)
-    n = ties.n
-    weighted = bool(ties.w.size) and not bool(np.all(ties.w == ties.w[0]))
-    nx_weight = _inverse_weight(weight) if weighted and weight is not None else None
-
-    k = n if samples is None and n <= exact_limit else samples
-    if k is None:
-        k = _default_samples(n, exact_limit)
-    if k >= n:
-        values = nx.betweenness_centrality(G, normalized=True, weight=nx_weight)
-        return dict(values), BetweennessInfo(
-            method="exact",
-            nodes=n,
-            k=n,
-            batches=1,
-            expected_error=0.0,
-            error_bound=0.0,
-            error_basis="exact: every node was a source.",
-            weighted=weighted,
-            exact_limit=exact_limit,
-            seed=seed,
-        )
-    if k < 2:
-        raise ValueError(f"betweenness needs at least 2 sampled sources; got samples={k}.")
-    batches = max(2, min(_MAX_BATCHES, k // 5))
-    sizes = [k // batches + (1 if b < k % batches else 0) for b in range(batches)]
-    batch_seeds = np.random.default_rng(seed).integers(0, 2**31 - 1, size=batches)
-    est = np.empty((batches, n))
-    for b, (size, s) in enumerate(zip(sizes, batch_seeds, strict=True)):
-        vals = nx.betweenness_centrality(G, k=size, normalized=True, weight=nx_weight, seed=int(s))
-        est[b] = [vals[v] for v in ties.nodes]
-    # Batches of unequal size: weight each batch estimate by its sources.
-    wts = np.asarray(sizes, dtype=np.float64) / k
-    mean = wts @ est
-    se = np.sqrt(((est - mean) ** 2).T @ (wts**2) * batches / (batches - 1))
-    bound = math.sqrt(math.log(2 / 0.05) / (2 * k))
-    info = BetweennessInfo(
-        method="sampled",
-        nodes=n,
-        k=k,
-        batches=batches,
-        expected_error=float(se.max()) if n else 0.0,
-        error_bound=bound,
-        error_basis=(
-            f"{k} random sources in {batches} independent batches; expected_error is the "
-            "largest per-node standard error of the mean of the batch estimates; "
-            "error_bound is Hoeffding's 95% half-width for one node, sqrt(ln(40)/(2k))."
-        ),
-        weighted=weighted,
-        exact_limit=exact_limit,
-        seed=seed,
-    )
-    return dict(zip(ties.nodes, mean.tolist(), strict=True)), info
+    values, info = _betweenness(ties, exact_limit=exact_limit, seed=seed, samples=samples)
+    return dict(zip(ties.nodes, values.tolist(), strict=True)), info
 
 
 # ----------------------------------------------------------------- structural holes

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from collections import Counter
+from fractions import Fraction
 
 import networkx as nx
 import numpy as np
@@ -57,13 +58,15 @@ def test_karate_faction_leaders_lead_the_hub_list(karate_result):
 def test_betweenness_is_normalised_as_networkx_does(karate_result, karate):
     # Reference: networkx.betweenness_centrality (normalized=True), Brandes (2001), with
     # tie strength read as closeness: distance = 1 / weight (roles.measures.betweenness).
+    # Distances as exact fractions, so paths of equal length tie exactly as they should
+    # (with floats, 1/3 + 1/6 and 1/2 can differ in the last bit).
     g = karate.copy()
     for _, _, d in g.edges(data=True):
-        d["distance"] = 1.0 / d["weight"]
+        d["distance"] = Fraction(1, int(d["weight"]))
     ref = nx.betweenness_centrality(g, normalized=True, weight="distance")
     got = karate_result.nodes.set_index("node").betweenness
     for node, value in ref.items():
-        assert got[str(node)] == pytest.approx(value, abs=1e-9)
+        assert got[str(node)] == pytest.approx(float(value), abs=1e-9)
 
 
 def test_lfr_communities_match_the_planted_ones(lfr):

@@ -47,12 +47,13 @@ __all__ = [
     "rank_hubs",
 ]
 
-#: Largest node count for exact betweenness. networkx 3.6, preferential attachment
-#: graphs of average degree 10, CPU seconds on the project's shared machine: 2,000 nodes
-#: 8.4 s counting steps and 30 s with weights (Dijkstra); 5,000 nodes 78 s counting
-#: steps; 10,000 nodes about 360 s (wall clock). Cost grows as nodes x ties, so 2,000
-#: is the largest size whose exact run stays within half a minute with weights.
-EXACT_LIMIT = 2000
+#: Largest node count for exact betweenness. Compiled Brandes (this module), preferential
+#: attachment graphs, one thread, CPU seconds on the project's shared 2-core machine
+#: (benchmarks/bench_measures.py): 5,000 nodes 4.6 s with weights (Dijkstra) and 1.8 s
+#: counting steps at average degree 10, 5.8 s and 2.4 s at average degree 20; 10,000
+#: nodes 19-24 s with weights; 20,000 nodes / 200k ties 106 s. Cost grows as nodes x
+#: ties, so 5,000 is the largest size whose exact run stays within a few seconds.
+EXACT_LIMIT = 5000
 
 #: Hub threshold on the within-community degree z-score (Guimera & Amaral 2005).
 HUB_Z = 2.5
@@ -68,9 +69,10 @@ BRIDGE_SHARE = 0.10
 # Comparisons against the published region bounds allow for rounding in P.
 _TOL = 1e-9
 
-# Sampled betweenness never uses fewer sources than this, so that each of the
-# independent batches used for the error estimate has a few sources.
-_MIN_SAMPLES = 50
+# Sampled betweenness never uses fewer sources than this by default: 1,000 sources cost
+# about 50 CPU seconds on 100k nodes / 1M ties and hold the largest standard error near
+# a tenth of the largest value there (see `betweenness`, parameter `samples`).
+_MIN_SAMPLES = 1000
 _MAX_BATCHES = 10
 
 
@@ -445,12 +447,14 @@ class BetweennessInfo:
 
 def _default_samples(n: int, exact_limit: int) -> int:
     # k * (n + m) = exact_limit**2 * (1 + m / n) at equal density: the sample costs about
-    # what an exact run at the limit costs (see the `samples` parameter for measurements).
-    return max(_MIN_SAMPLES, math.ceil(exact_limit**2 / max(n, 1)))
+    # what an exact run at the limit costs, and k = n just above the limit, so the cost
+    # does not jump there (see the `samples` parameter for measurements).
+    return min(n, max(_MIN_SAMPLES, math.ceil(exact_limit**2 / max(n, 1))))
 
 
 # Paths whose lengths differ by less than this share of the shortest length count as
-# equally short: 1/3 + 1/3 + 1/3 and 1 are then one length, as in exact arithmetic.
+# equally short: 1/2 + 1/3 + 1/6 (0.9999999999999999 in floating point) and 1/2 + 1/2
+# are then one length, as in exact arithmetic.
 # Rounding of a sum of h floats is below h * 1.1e-16 relative, so 1e-12 absorbs it for
 # paths up to thousands of steps, far below any difference real tie data can make.
 _PATH_TOL = 1e-12
@@ -792,15 +796,28 @@ def _estimates(
     targets). Each is unbiased given whether the node was drawn; with ``k = n`` this
     is the exact ``1 / ((n - 1)(n - 2))``.
     """
-    n = adjacency[0].shape[0] - 1
-    sizes = [len(d) for d in drawn]
-    bounds = _chunks(sizes)
-    symmetric = adjacency[0] is adjacency[3]
-    sources = np.concatenate(drawn).astype(np.int32)
-    acc = _brandes(*adjacency, weighted, symmetric, _PATH_TOL, sources, bounds)
+    indptr, indices, length, rindptr, rindices, rlength = adjacency
+    n = indptr.shape[0] - 1
     est = np.zeros((len(drawn), n))
     if n < 3:
         return est  # no pair (s, t) with a third node between: all zero, as networkx
+    sizes = [len(d) for d in drawn]
+    bounds = _chunks(sizes)
+    sources = np.concatenate(drawn).astype(np.int32)
+    symmetric = indptr is rindptr  # undirected: in-neighbours are the same arrays
+    acc = _brandes(
+        indptr,
+        indices,
+        length,
+        rindptr,
+        rindices,
+        rlength,
+        weighted,
+        symmetric,
+        _PATH_TOL,
+        sources,
+        bounds,
+    )
     end = 0
     for b, (size, src) in enumerate(zip(sizes, drawn, strict=True)):
         end += size
@@ -877,25 +894,31 @@ def betweenness(
 
     ``b(v) = sum_{s != v != t} sigma_st(v) / sigma_st``, divided by ``(n-1)(n-2)`` for
     both directed and undirected graphs (networkx's ``normalized=True``) [1]_, computed
-    with Brandes' algorithm [2]_ by :func:`networkx.betweenness_centrality`.
+    with Brandes' algorithm [2]_ in compiled code: a breadth-first search per source when
+    steps are counted, Dijkstra's algorithm with a binary heap when ties have lengths.
 
     Parameters
     ----------
     G : networkx.Graph or networkx.DiGraph
-        The network.
+        The network. Self-loops are ignored (they lie on no shortest path).
     exact_limit : int
         Exact for graphs of at most this many nodes (see :data:`EXACT_LIMIT` for the
         measured cost); larger graphs use sampled sources.
     seed : int
         Seed of the source sample (unused when exact).
     samples : int, optional
-        Number of source nodes when sampling. Default: ``max(50, exact_limit**2 / n)``:
-        ``k`` sources cost about ``k (n + m)``, which is then the cost of an exact run on
-        ``exact_limit`` nodes of the same density. Measured (benchmarks/bench_measures.py,
-        weighted, average degree 10): 400 sources on 10,000 nodes took 68 CPU seconds
-        against 30 for the exact run on 2,000 nodes (the cost per source grows a little
-        faster than the graph); on 100,000 nodes and 1M ties a source costs about 6 CPU
-        seconds, so the default 50 sources take about 5 CPU minutes.
+        Number of source nodes when sampling. Default: ``exact_limit**2 / n``, at least
+        1,000 and at most ``n``: ``k`` sources cost about ``k (n + m)``, which is then the
+        cost of an exact run on ``exact_limit`` nodes of the same density. Measured
+        (benchmarks/bench_measures.py, preferential attachment, weights 1-5, CPU
+        seconds on the project's shared 2-core machine): 20,000 nodes / 200k ties, 1,250
+        sources, about 7 s (5.5 ms a source; the exact run takes 106 s); 100,000 nodes
+        / 1M ties, 1,000 sources, 48 s (75 s wall clock under the machine's load), with
+        the largest standard error 0.0039 against a largest value of 0.033 (250 sources:
+        0.0066). At 20,000 nodes, against the exact values, the largest error of 1,000
+        sources was 1.2 - 2.3 times ``expected_error`` (three seeds) and the top tenth
+        of nodes by betweenness was 75% the same; nodes with little betweenness are
+        estimated with a large relative error, the highest ones within about 10%.
     weight : str or None, default "weight"
         Tie strengths: shortest paths use **distance = 1 / weight** (a strong tie is a
         short step, as in Newman 2001 [3]_). When all weights are equal (or ``None``)
@@ -913,12 +936,28 @@ def betweenness(
     ------
     InputError
         A weight is not a positive number.
+    ValueError
+        ``samples`` is below 2 (and below the node count).
 
     Notes
     -----
-    Sampling draws ``k`` sources in independent batches (up to 10), each a call of
-    networkx with ``k=`` sources; the estimate is the mean of the batch estimates (each
-    unbiased), and the spread of the batch estimates gives ``info.expected_error``.
+    Equal lengths: two paths count as equally short when their lengths differ by less
+    than 1e-12 of the length, so that 1/2 + 1/3 + 1/6 equals 1/2 + 1/2 as it does in
+    exact arithmetic. networkx compares floating-point sums exactly, so where rounding
+    splits such a tie the two disagree (on Zachary's karate club with its weights, by up
+    to 0.0019); the tests check the values against networkx run on exact fractions
+    (:class:`fractions.Fraction` distances), and against networkx on floats where no
+    rounding tie arises. Counting steps, results agree with networkx to rounding.
+
+    Sampling draws ``k`` sources in independent batches (up to 10, sources distinct
+    within a batch) and scales each batch as networkx 3.6 scales ``k`` sources: a node
+    that was itself drawn is averaged over the other ``k - 1`` sources, any other node
+    over all ``k``, so each batch estimate is unbiased [4]_. The estimate is the mean of
+    the batch estimates, and their spread gives ``info.expected_error``.
+
+    Threads: sources are split into fixed chunks (32 per call, by source count only),
+    each summed in order by one of numba's threads, and the chunks are then added in
+    order, so the values are the same for any thread count.
 
     References
     ----------
@@ -1255,7 +1294,7 @@ _BRIDGE_ROLES = ("bridge-like", "connector hub")
 
 def _label(hub: bool, bridge: bool, neighbours: int) -> str:
     if neighbours == 0:
-        return "isolated"
+        return "no ties"
     if hub and bridge:
         return "connector hub"
     if hub:
@@ -1314,7 +1353,7 @@ def role_table(
 
     Labels: ``"connector hub"`` (both tests), ``"hub-like"`` (hub only),
     ``"bridge-like"`` (bridge only), ``"peripheral"`` (neither, and a single
-    neighbour), ``"member"`` (neither, otherwise), ``"isolated"`` (no ties). The
+    neighbour), ``"member"`` (neither, otherwise), ``"no ties"`` (no ties). The
     published region (R1-R7) is kept beside the label in ``region``.
 
     References
@@ -1328,8 +1367,7 @@ def role_table(
     codes = _codes(ties, community)
     P = _participation(ties, codes)
     z = _within_z(ties, codes)
-    bvals, info = betweenness(G, exact_limit=exact_limit, seed=seed, weight=weight)
-    b = np.array([bvals[v] for v in ties.nodes], dtype=np.float64)
+    b, info = _betweenness(ties, exact_limit=exact_limit, seed=seed, samples=None)
     c, e = _structural_holes(ties)
     dep = dependents(G)
     neighbours = np.diff(_symmetric(ties)[0])

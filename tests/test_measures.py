@@ -3,7 +3,8 @@
 References used below:
 - bctpy (Brain Connectivity Toolbox for Python; Rubinov & Sporns, NeuroImage 2010):
   ``participation_coef`` and ``module_degree_zscore``.
-- networkx: ``betweenness_centrality``, ``constraint``, ``effective_size``.
+- networkx: ``betweenness_centrality`` (with weights also on exact ``Fraction``
+  distances, so equal path lengths are equal), ``constraint``, ``effective_size``.
 - Brute-force removal counts (remove the node, search again) for dependents.
 - Zachary's karate club (Zachary 1977), bundled with networkx.
 - Region bounds: Guimera & Amaral, Nature 433:895 (2005).
@@ -12,15 +13,21 @@ References used below:
 from __future__ import annotations
 
 import math
+import random
+from fractions import Fraction
 
 import bct
 import networkx as nx
+import numba
 import numpy as np
 import pytest
 
 from roles.errors import InputError
 from roles.measures import (
     EXACT_LIMIT,
+    _adjacency,
+    _estimates,
+    _ties,
     betweenness,
     dependents,
     participation_coefficient,
@@ -159,29 +166,171 @@ def test_role_region_tolerates_rounding_at_a_bound():
 # -------------------------------------------------------------------- betweenness
 
 
+def _exact_distance(weight: str = "weight"):
+    # networkx run on exact rationals: distance = 1 / weight as a Fraction, so equal
+    # path lengths compare equal (the meaning of shortest paths, without rounding).
+    return lambda u, v, d: Fraction(1) / Fraction(d.get(weight, 1))
+
+
+def _float_distance(u, v, d):
+    return 1.0 / d["weight"]
+
+
+def _assert_same(values: dict, expected: dict, tol: float = 1e-12) -> None:
+    assert values.keys() == expected.keys()
+    for v in expected:
+        assert values[v] == pytest.approx(float(expected[v]), abs=tol), v
+
+
+def _with_weights(G: nx.Graph, seed: int, high: int = 5) -> nx.Graph:
+    rng = np.random.default_rng(seed)
+    for u, v in G.edges():
+        G[u][v]["weight"] = int(rng.integers(1, high + 1))
+    return G
+
+
 @pytest.mark.parametrize("directed", [False, True])
 def test_betweenness_exact_matches_networkx(directed):
     G = nx.gnm_random_graph(80, 240, directed=directed, seed=7)
     values, info = betweenness(G, exact_limit=EXACT_LIMIT, seed=0)
     expected = nx.betweenness_centrality(G)  # reference: networkx, normalized=True
     assert info.method == "exact" and info.k == 80 and info.expected_error == 0.0
-    for v in G:
-        assert values[v] == pytest.approx(expected[v], abs=1e-12)
+    assert not info.weighted
+    _assert_same(values, expected)
 
 
-def test_betweenness_weighted_uses_inverse_weight_as_distance():
+@pytest.mark.parametrize("weight", ["weight", None])
+def test_betweenness_karate_matches_networkx(weight):
+    # Zachary's karate club with its recorded tie strengths (1-7), bundled with networkx.
+    G = nx.karate_club_graph()
+    values, info = betweenness(G, exact_limit=EXACT_LIMIT, seed=0, weight=weight)
+    assert info.weighted == (weight is not None)
+    # Reference: networkx; with weights on exact fractions (distance = 1 / weight).
+    if weight is None:
+        expected = nx.betweenness_centrality(G)
+    else:
+        expected = nx.betweenness_centrality(G, weight=_exact_distance())
+    _assert_same(values, expected)
+
+
+def test_betweenness_les_miserables_weighted_matches_networkx():
     G, _ = _les_mis()
     values, info = betweenness(G, exact_limit=EXACT_LIMIT, seed=0)
-    # Reference: networkx with distance = 1 / weight (bigger weight = closer tie).
-    expected = nx.betweenness_centrality(G, weight=lambda u, v, d: 1.0 / d["weight"])
     assert info.weighted
-    for v in G:
-        assert values[v] == pytest.approx(expected[v], abs=1e-12)
+    # Reference: networkx with distance = 1 / weight, on floats and on exact fractions
+    # (they agree on this graph: no tie of path lengths is split by rounding).
+    _assert_same(values, nx.betweenness_centrality(G, weight=_float_distance))
+    _assert_same(values, nx.betweenness_centrality(G, weight=_exact_distance()))
     # With weight=None the step-count betweenness of networkx comes back.
     unweighted, info = betweenness(G, exact_limit=EXACT_LIMIT, seed=0, weight=None)
-    plain = nx.betweenness_centrality(G)
     assert not info.weighted
-    assert all(unweighted[v] == pytest.approx(plain[v], abs=1e-12) for v in G)
+    _assert_same(unweighted, nx.betweenness_centrality(G))
+
+
+@pytest.mark.parametrize("seed", SEEDS[:3])
+@pytest.mark.parametrize("weight", ["weight", None])
+def test_betweenness_random_directed_matches_networkx(seed, weight):
+    G = _with_weights(nx.gnm_random_graph(70, 260, directed=True, seed=seed), seed)
+    G.add_edge(3, 3, weight=1)  # a self-loop lies on no shortest path
+    G.add_node("alone")
+    values, _ = betweenness(G, exact_limit=EXACT_LIMIT, seed=0, weight=weight)
+    # Reference: networkx (successors only: directed paths), exact fractions with weights.
+    nx_weight = None if weight is None else _exact_distance()
+    _assert_same(values, nx.betweenness_centrality(G, weight=nx_weight))
+
+
+@pytest.mark.parametrize("seed", SEEDS[:3])
+def test_betweenness_random_undirected_weighted_matches_networkx(seed):
+    # Weights 1-5 make many path lengths equal in exact arithmetic and unequal after
+    # rounding; networkx on fractions is the reference.
+    G = _with_weights(nx.gnm_random_graph(70, 200, seed=seed), seed)
+    values, _ = betweenness(G, exact_limit=EXACT_LIMIT, seed=0)
+    _assert_same(values, nx.betweenness_centrality(G, weight=_exact_distance()))
+
+
+def test_betweenness_equal_length_paths_split_by_rounding():
+    # Ring s-a-b-t-c-s with strengths 2, 3, 6, 2, 2: lengths 1/2, 1/3, 1/6, 1/2, 1/2.
+    # From s to t both ways are 1 long (1/2 + 1/3 + 1/6 = 1/2 + 1/2), so c carries half
+    # of the pair (s, t) and nothing else (by hand: every other pair has one shortest
+    # way round): b(c) = 2 * 1/2 / ((n - 1)(n - 2)) = 1 / 12 for n = 5.
+    G = nx.Graph()
+    G.add_weighted_edges_from(
+        [("s", "a", 2), ("a", "b", 3), ("b", "t", 6), ("t", "c", 2), ("c", "s", 2)]
+    )
+    assert 1 / 2 + 1 / 3 + 1 / 6 != 1 / 2 + 1 / 2  # floating point splits the tie
+    values, _ = betweenness(G, exact_limit=EXACT_LIMIT, seed=0)
+    assert values["c"] == pytest.approx(1 / 12, abs=1e-15)
+    _assert_same(values, nx.betweenness_centrality(G, weight=_exact_distance()))
+
+
+def test_betweenness_equal_length_paths_in_exact_floats_match_networkx():
+    # Strengths 1, 2 and 4 give lengths 1, 1/2 and 1/4, whose sums are exact in binary
+    # floating point: many equally short paths on a grid, and networkx on floats agrees.
+    G = nx.convert_node_labels_to_integers(nx.grid_2d_graph(6, 6))
+    rng = np.random.default_rng(4)
+    for u, v in G.edges():
+        G[u][v]["weight"] = float(rng.choice([1, 2, 4]))
+    values, _ = betweenness(G, exact_limit=EXACT_LIMIT, seed=0)
+    _assert_same(values, nx.betweenness_centrality(G, weight=_float_distance))
+    # Counting steps on the grid (C(10, 5) = 252 shortest paths corner to corner).
+    steps, _ = betweenness(G, exact_limit=EXACT_LIMIT, seed=0, weight=None)
+    _assert_same(steps, nx.betweenness_centrality(G))
+
+
+def test_betweenness_cycle_hand_value():
+    # A 4-cycle: opposite nodes are joined by two shortest paths, each through one
+    # of the other two nodes, so each node carries half of one pair, counted in both
+    # directions: b = 2 * 1/2 / (3 * 2) = 1/6 (Freeman's definition, by hand).
+    values, _ = betweenness(nx.cycle_graph(4), exact_limit=EXACT_LIMIT, seed=0)
+    assert values == pytest.approx(dict.fromkeys(range(4), 1 / 6), abs=1e-15)
+
+
+def test_betweenness_tiny_graphs():
+    # Fewer than three nodes: no node lies between two others (networkx gives 0).
+    assert betweenness(nx.Graph(), exact_limit=10, seed=0)[0] == {}
+    assert betweenness(nx.path_graph(2), exact_limit=10, seed=0)[0] == {0: 0.0, 1: 0.0}
+    star = nx.star_graph(3)  # centre on all 3 pairs of leaves: b = 6 / (3 * 2) = 1
+    assert betweenness(star, exact_limit=10, seed=0)[0] == {0: 1.0, 1: 0.0, 2: 0.0, 3: 0.0}
+
+
+@pytest.mark.parametrize("directed", [False, True])
+def test_betweenness_sample_scaling_matches_networkx(directed):
+    # Same sources as networkx draws for k=30, seed=11 (random.Random(11).sample over the
+    # node list, networkx 3.6): the scaled sums must equal networkx's k-sample estimate.
+    G = _with_weights(nx.gnm_random_graph(90, 300, directed=directed, seed=2), 2)
+    drawn = random.Random(11).sample(list(G), 30)
+    reference = nx.betweenness_centrality(G, k=30, seed=11)
+    ties = _ties(G, None)
+    est = _estimates(_adjacency(ties, False), False, [np.asarray(drawn)])[0]
+    _assert_same(dict(zip(ties.nodes, est.tolist(), strict=True)), reference)
+
+
+def test_betweenness_same_values_for_any_thread_count():
+    if numba.config.NUMBA_NUM_THREADS < 2:
+        pytest.skip("numba has a single thread here")
+    G = _with_weights(nx.barabasi_albert_graph(300, 3, seed=1), 1)
+    before = numba.get_num_threads()
+    try:
+        numba.set_num_threads(1)
+        one = betweenness(G, exact_limit=100, seed=5, samples=120)
+        numba.set_num_threads(2)
+        two = betweenness(G, exact_limit=100, seed=5, samples=120)
+    finally:
+        numba.set_num_threads(before)
+    assert one == two  # bit for bit, info included
+
+
+def test_betweenness_default_sample_size():
+    G = nx.barabasi_albert_graph(1200, 2, seed=3)
+    # Default sources: exact_limit**2 / n, at least 1,000, at most n (our rule).
+    _, info = betweenness(G, exact_limit=500, seed=0, weight=None)
+    assert (info.method, info.k, info.batches) == ("sampled", 1000, 10)
+    _, info = betweenness(G, exact_limit=1150, seed=0, weight=None)
+    assert (info.method, info.k) == ("sampled", math.ceil(1150**2 / 1200))
+    _, info = betweenness(nx.path_graph(900), exact_limit=500, seed=0)
+    assert info.method == "exact"  # 1,000 sources would be more than the nodes
+    with pytest.raises(ValueError, match="at least 2"):
+        betweenness(G, exact_limit=10, seed=0, samples=1)
 
 
 def test_betweenness_sampled_estimate_within_its_stated_error():
@@ -367,10 +516,13 @@ def test_bridge_needs_ties_outside_its_community():
     assert rank_bridges(table, top=1) == [10]
 
 
-def test_role_labels_for_isolated_and_single_tie_nodes():
+def test_role_labels_for_nodes_without_ties_and_single_tie_nodes():
     G = nx.path_graph(3)
     G.add_node(9)
+    G.add_edge(7, 7)  # a self-loop is not a tie to anyone
     table = role_table(G, dict.fromkeys(G, 0))
-    assert table.loc[9, "role"] == "isolated"
+    # One name for nodes without ties, the one the report and nodes.csv use.
+    assert table.loc[9, "role"] == "no ties"
+    assert table.loc[7, "role"] == "no ties"
     assert table.loc[0, "role"] == "peripheral"
     assert table.loc[1, "dependents"] == 1

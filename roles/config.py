@@ -139,10 +139,16 @@ class ConfidenceConfig:
 
     runs: int = 3
     randomisations: int = 20
+    scale_down: bool = True
 
     def __post_init__(self) -> None:
         _check_int("[confidence]", "runs", self.runs, 0, 50)
         _check_int("[confidence]", "randomisations", self.randomisations, 0, 1000)
+        if not isinstance(self.scale_down, bool):
+            raise ConfigError(
+                "The 'scale_down' parameter of [confidence] must be true or false. "
+                f"Got {self.scale_down!r} instead."
+            )
 
 
 @dataclass(frozen=True)

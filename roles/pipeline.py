@@ -135,6 +135,51 @@ def _versions() -> dict[str, str]:
     return out
 
 
+#: Above these sizes the confidence checks are cut back unless [confidence]
+#: scale_down = false: one re-run costs as much as the whole embedding, and Louvain on
+#: one randomised copy takes about 50 CPU seconds at 100,000 ties
+#: (benchmarks/bench_confidence.py).
+RERUNS_FULL_NODES = 5_000
+RERUNS_ONE_NODES = 10_000
+STRUCTURE_MAX_TIES = 50_000
+
+
+def confidence_budget(
+    n_tied: int, n_ties: int, runs: int, randomisations: int, scale_down: bool
+) -> tuple[int, int, str | None]:
+    """Re-runs and randomisations to spend, and a note when fewer than asked."""
+    if not scale_down:
+        return runs, randomisations, None
+    notes = []
+    used_runs = runs
+    if n_tied > RERUNS_ONE_NODES:
+        used_runs = 0
+    elif n_tied > RERUNS_FULL_NODES:
+        used_runs = min(runs, 1)
+    if used_runs < runs:
+        notes.append(
+            f"{used_runs} of {runs} re-runs with other seeds ({n_tied:,} members with ties; "
+            f"all re-runs up to {RERUNS_FULL_NODES:,}, one up to {RERUNS_ONE_NODES:,}, none "
+            "beyond)"
+        )
+    used_rand = randomisations if n_ties <= STRUCTURE_MAX_TIES else 0
+    if used_rand < randomisations:
+        notes.append(
+            f"no structure test ({n_ties:,} ties; it runs up to {STRUCTURE_MAX_TIES:,} ties)"
+        )
+    if not notes:
+        return runs, randomisations, None
+    return (
+        used_runs,
+        used_rand,
+        (
+            "To keep the run affordable: "
+            + "; ".join(notes)
+            + ". Set scale_down = false under [confidence] to spend the full budget."
+        ),
+    )
+
+
 def _betweenness_info(table: pd.DataFrame) -> dict[str, Any]:
     import dataclasses
 
@@ -295,7 +340,14 @@ def run(
             overlap[idx] = comparison.overlap
 
     confidence = None
-    if config.confidence.runs > 0 or config.confidence.randomisations > 0:
+    runs, randomisations, confidence_note = confidence_budget(
+        len(idx),
+        graph.number_of_edges(),
+        config.confidence.runs,
+        config.confidence.randomisations,
+        config.confidence.scale_down,
+    )
+    if runs > 0 or randomisations > 0:
         from .confidence import assess
 
         with timer.stage("confidence"):
@@ -307,8 +359,8 @@ def run(
                 community_view,
                 view_labels["local"],
                 view_labels["far"],
-                runs=config.confidence.runs,
-                randomisations=config.confidence.randomisations,
+                runs=runs,
+                randomisations=randomisations,
                 seed=seeds[6],
             )
 
@@ -421,6 +473,7 @@ def run(
             "nmi_with_louvain": round(louvain_nmi, 4),
         },
         "betweenness": _betweenness_info(table),
+        "confidence_budget": confidence_note,
         "parameters": {**config.as_dict(), "directed": graph.is_directed()},
         "input": dict(source or {}),
         "versions": _versions(),

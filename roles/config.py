@@ -162,6 +162,8 @@ class Config:
     far: ViewConfig = field(default_factory=_far_default)
     cluster: ClusterConfig = field(default_factory=ClusterConfig)
     confidence: ConfidenceConfig = field(default_factory=ConfidenceConfig)
+    #: Whether the user set walk keys; only then is the walk budget left as given.
+    walks_given: bool = field(default=False, compare=False)
 
     def __post_init__(self) -> None:
         _check_int("the configuration", "seed", self.seed, 0, 2**32 - 1)
@@ -225,6 +227,7 @@ def config_from_mapping(data: Mapping[str, Any]) -> Config:
     for key, cls in _SECTIONS.items():
         if key in data:
             kwargs[key] = _section(data[key], f"[{key}]", cls)
+    kwargs["walks_given"] = bool(data.get("walks"))
     if "views" in data:
         views = data["views"]
         if not isinstance(views, Mapping):

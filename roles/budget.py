@@ -1,0 +1,117 @@
+"""Walk budget: shorter walks for large networks, so the report stays within minutes.
+
+The walks and their skip-gram training cost time in proportion to the skip-gram
+(centre, context) pairs of a view: ``nodes * walks_per_node * walk_length * (window +
+1)`` (gensim draws each token's window from 1 to ``window`` on each side, so a token has
+``window + 1`` context words on average). Measured on the project's 2-core machine
+(``benchmarks/bench_pipeline.py``), skip-gram trains about 1.3 million pairs per second
+per core, and the two views run side by side, one per core.
+
+Beyond :data:`MAX_PAIRS_PER_VIEW` pairs the walks are shortened, down to
+:data:`MIN_WALK_LENGTH` nodes, and only then are fewer walks started at each node, down
+to :data:`MIN_WALKS_PER_NODE`; shortening first keeps every member the start of as
+many walks. The floors come from ``benchmarks/bench_defaults.py`` (LFR graphs,
+Lancichinetti, Fortunato & Radicchi 2008, n = 1000, window 2): community recovery
+follows mostly the pairs per node, and below the floors it breaks down on loosely knit
+communities. NMI at mixing 0.1 / 0.3: 10 walks of 40 nodes 0.996 / 0.890; of 30 nodes
+0.992 / 0.790; of 20 nodes 0.950 / 0.202; 6 walks of 40 nodes 0.986 / 0.353. See
+``benchmarks/RESULTS.md``.
+
+Apply it only to walk settings the user did not choose. A configuration whose
+``walks_given`` flag is set (a configuration file with a ``[walks]`` section) is
+returned unchanged; a caller that builds configurations another way must skip
+:func:`walk_budget` itself when the user set ``walks_per_node`` or ``walk_length``,
+since an explicit value equal to the default cannot be told apart from it.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+
+from .config import Config
+
+__all__ = [
+    "walk_budget",
+    "skipgram_pairs",
+    "MAX_PAIRS_PER_VIEW",
+    "MIN_WALKS_PER_NODE",
+    "MIN_WALK_LENGTH",
+]
+
+#: Skip-gram pairs per view above which the walks are shortened: 20,000 nodes at
+#: 10 walks of 40 nodes and window 2 (about 19 s per view on one core of the measured
+#: machine), the size the 60-second target is set for.
+MAX_PAIRS_PER_VIEW = 24_000_000
+
+#: Fewest walks started at each node after scaling.
+MIN_WALKS_PER_NODE = 10
+
+#: Shortest walk (nodes, start included) after scaling.
+MIN_WALK_LENGTH = 30
+
+
+def skipgram_pairs(n_nodes: int, config: Config) -> int:
+    """Skip-gram pairs of one view: ``n_nodes * walks_per_node * walk_length *
+    (window + 1) * epochs``, the cost model of this module."""
+    w, e = config.walks, config.embedding
+    return n_nodes * w.walks_per_node * w.walk_length * (e.window + 1) * e.epochs
+
+
+def walk_budget(n_nodes: int, n_edges: int, config: Config) -> tuple[Config, str | None]:
+    """Shorten (then thin out) the walks for a large network.
+
+    Parameters
+    ----------
+    n_nodes, n_edges : int
+        Size of the network (``n_edges`` counts ties once; it appears in the note).
+    config : Config
+        The configuration to adjust; only ``config.walks`` may change.
+
+    Returns
+    -------
+    config : Config
+        ``config`` itself when the budget fits (or the user set the walk keys),
+        otherwise a copy with shorter or fewer walks.
+    note : str or None
+        Plain-language sentences for the report saying what was changed and why, or
+        ``None`` when nothing changed.
+
+    Notes
+    -----
+    Never raises a budget: walk settings already at or below a floor stay as they
+    are. Applying the function to its own result changes nothing more.
+    """
+    if getattr(config, "walks_given", False):
+        return config, None
+    walks = config.walks
+    per_walk_token = (config.embedding.window + 1) * config.embedding.epochs
+    if skipgram_pairs(n_nodes, config) <= MAX_PAIRS_PER_VIEW:
+        return config, None
+    # Tokens each node may start: walks_per_node * walk_length.
+    allowed = MAX_PAIRS_PER_VIEW / (max(n_nodes, 1) * per_walk_token)
+    count = walks.walks_per_node
+    floor_length = min(walks.walk_length, MIN_WALK_LENGTH)
+    length = max(floor_length, min(walks.walk_length, int(allowed // count)))
+    if count * length > allowed:
+        floor_count = min(count, MIN_WALKS_PER_NODE)
+        count = max(floor_count, min(count, int(allowed // length)))
+    if (count, length) == (walks.walks_per_node, walks.walk_length):
+        return config, None
+    scaled = dataclasses.replace(
+        config, walks=dataclasses.replace(walks, walks_per_node=count, walk_length=length)
+    )
+    changes = []
+    if length != walks.walk_length:
+        changes.append(f"each walk visited {length} members instead of {walks.walk_length}")
+    if count != walks.walks_per_node:
+        changes.append(f"{count} walks started from each member instead of {walks.walks_per_node}")
+    note = (
+        f"This network is large ({n_nodes:,} members, {n_edges:,} ties), so the random "
+        f"walks that describe each member's surroundings were cut back: "
+        f"{' and '.join(changes)}. This keeps the analysis within minutes. On test "
+        "networks with clearly separated communities it makes little difference; where "
+        "communities are loosely knit, the groups are less reliable. To use the full "
+        "walks, set walks_per_node and walk_length in the [walks] section of a "
+        "configuration file."
+    )
+    return scaled, note

@@ -1,0 +1,113 @@
+"""Walk budget: large networks get shorter walks, small ones keep the configured budget."""
+
+import dataclasses
+
+import pytest
+
+from roles.budget import (
+    MAX_PAIRS_PER_VIEW,
+    MIN_WALK_LENGTH,
+    MIN_WALKS_PER_NODE,
+    skipgram_pairs,
+    walk_budget,
+)
+from roles.config import Config, EmbeddingConfig, WalkConfig, config_from_mapping
+
+
+def _pairs(n: int, config: Config) -> int:
+    # Cost model written out independently: one token per node visited, each token
+    # trained against window + 1 context words on average (word2vec's reduced window,
+    # Mikolov et al. 2013, as gensim implements it), once per epoch.
+    w, e = config.walks, config.embedding
+    return n * w.walks_per_node * w.walk_length * (e.window + 1) * e.epochs
+
+
+def test_cost_model():
+    config = Config(walks=WalkConfig(10, 40), embedding=EmbeddingConfig(window=2, epochs=1))
+    assert skipgram_pairs(20000, config) == 20000 * 10 * 40 * 3  # = 24,000,000
+    assert skipgram_pairs(20000, config) == _pairs(20000, config)
+
+
+def _config(window: int = 2) -> Config:
+    return Config(embedding=EmbeddingConfig(window=window))
+
+
+@pytest.mark.parametrize("n, m", [(34, 78), (1000, 10000), (10000, 100000), (20000, 200000)])
+def test_small_networks_keep_the_configuration(n, m):
+    config = _config()
+    assert _pairs(n, config) <= MAX_PAIRS_PER_VIEW  # precondition of this case
+    got, note = walk_budget(n, m, config)
+    assert got is config
+    assert note is None
+
+
+@pytest.mark.parametrize("n, m", [(30000, 300000), (100000, 1000000), (1000000, 5000000)])
+@pytest.mark.parametrize("window", [2, 5])
+def test_large_networks_are_scaled_down_with_a_note(n, m, window):
+    config = _config(window)
+    assert _pairs(n, config) > MAX_PAIRS_PER_VIEW  # precondition of this case
+    got, note = walk_budget(n, m, config)
+    w = got.walks
+    assert w.walks_per_node >= MIN_WALKS_PER_NODE
+    assert w.walk_length >= MIN_WALK_LENGTH
+    at_floor = (w.walks_per_node, w.walk_length) == (MIN_WALKS_PER_NODE, MIN_WALK_LENGTH)
+    assert _pairs(n, got) <= MAX_PAIRS_PER_VIEW or at_floor
+    assert _pairs(n, got) < _pairs(n, config)
+    assert note is not None
+    # The note gives the sizes and the old and new walk length in figures a reader can check.
+    for figure in (f"{n:,}", f"{m:,}", str(w.walk_length), "40"):
+        assert figure in note
+
+
+def test_walks_are_shortened_before_they_are_thinned():
+    got, _ = walk_budget(100000, 1000000, _config())
+    assert got.walks.walk_length < 40
+    assert got.walks.walks_per_node == 10
+
+
+def test_only_the_walk_settings_change():
+    config = Config(seed=7, embedding=EmbeddingConfig(dimensions=32, window=3))
+    got, _ = walk_budget(100000, 1000000, config)
+    assert got.walks != config.walks
+    assert dataclasses.replace(got, walks=config.walks) == config
+
+
+def test_budget_uses_the_allowance():
+    # Between the cap and the floor, one node more per walk would break the cap.
+    n = 25000
+    config = _config()
+    got, _ = walk_budget(n, 10 * n, config)
+    w = got.walks
+    assert MIN_WALK_LENGTH < w.walk_length < 40
+    longer = dataclasses.replace(got, walks=WalkConfig(w.walks_per_node, w.walk_length + 1))
+    assert _pairs(n, got) <= MAX_PAIRS_PER_VIEW < _pairs(n, longer)
+
+
+def test_scaled_budget_is_stable():
+    # Applying the budget to its own output changes nothing more and adds no note.
+    once, _ = walk_budget(100000, 1000000, _config())
+    twice, note = walk_budget(100000, 1000000, once)
+    assert twice.walks == once.walks
+    assert note is None
+
+
+def test_bigger_networks_never_get_longer_walks():
+    sizes = [1000, 10000, 20000, 25000, 50000, 100000, 300000, 1000000]
+    budgets = [walk_budget(n, 10 * n, _config())[0].walks for n in sizes]
+    per_node = [w.walks_per_node * w.walk_length for w in budgets]
+    assert per_node == sorted(per_node, reverse=True)
+
+
+def test_a_small_configured_budget_is_never_raised():
+    config = Config(walks=WalkConfig(walks_per_node=2, walk_length=10))
+    got, note = walk_budget(10**6, 10**7, config)
+    assert got.walks == config.walks
+    assert note is None
+
+
+def test_walk_keys_set_by_the_user_are_left_alone():
+    config = config_from_mapping({"walks": {"walks_per_node": 10, "walk_length": 40}})
+    assert config.walks_given
+    got, note = walk_budget(100000, 1000000, config)
+    assert got is config
+    assert note is None

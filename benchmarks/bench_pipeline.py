@@ -305,10 +305,19 @@ def _community_nmi(truth: np.ndarray | None, labels: np.ndarray) -> float | None
     return round(float(normalized_mutual_info_score(truth, labels)), 3)
 
 
+#: Overrides from the command line (``--window``, ``--fit-limit``), set in the child.
+OVERRIDES: dict[str, Any] = {}
+
+
 def _config(n: int, m: int, budget: bool) -> tuple[Any, str | None]:
+    import dataclasses
+
     from roles.config import Config
 
     config = Config()
+    if OVERRIDES.get("window"):
+        embedding = dataclasses.replace(config.embedding, window=OVERRIDES["window"])
+        config = dataclasses.replace(config, embedding=embedding)
     if not budget:
         return config, None
     from roles.budget import walk_budget
@@ -339,6 +348,9 @@ def part_stages(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
         csr = to_csr(graph)
     with meter.stage("walk kernel load"):  # numba's disk cache, or a compile
         generate_walks(csr, walks_per_node=1, walk_length=3, p=1.0, q=2.0, seed=0)
+    with meter.stage("imports"):  # kept out of the first skip-gram and clustering rows
+        import gensim.models  # noqa: F401
+        import hdbscan  # noqa: F401
     walks: dict[str, np.ndarray] = {}
     for i, (view, vc) in enumerate(config.views.items()):
         with meter.stage(f"walks {view}", p=vc.p, q=vc.q) as row:
@@ -379,6 +391,7 @@ def part_stages(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
                 min_cluster_size=config.cluster.min_cluster_size,
                 reduce_to=config.cluster.reduce_to,
                 seed=seeds[2 + i],
+                fit_limit=OVERRIDES.get("fit_limit"),
             )
         g = groupings[view]
         row["groups"] = g.n_groups
@@ -405,6 +418,7 @@ def part_stages(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
         "nodes": graph.number_of_nodes(),
         "edges": graph.number_of_edges(),
         "part": "stages",
+        "fit_limit": OVERRIDES.get("fit_limit"),
         "generate_s": generated,
         "config": config.as_dict(),
         "budget_note": note,
@@ -420,6 +434,14 @@ def part_whole(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
     from roles.load import load_edges
     from roles.pipeline import run
 
+    if OVERRIDES.get("fit_limit"):
+        # Preview of the proposed wiring: the pipeline passing fit_limit to cluster().
+        import functools
+
+        import roles.pipeline
+        from roles.cluster import cluster
+
+        roles.pipeline.cluster = functools.partial(cluster, fit_limit=OVERRIDES["fit_limit"])
     meter = _Meter()
     t0 = time.perf_counter()
     graph, _ = make_graph(kind, n, seed)
@@ -471,6 +493,7 @@ def part_whole(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
         "nodes": nodes,
         "edges": edges,
         "part": "whole",
+        "fit_limit": OVERRIDES.get("fit_limit"),
         "generate_s": generated,
         "config": config.as_dict(),
         "budget_note": note,
@@ -531,7 +554,10 @@ def print_case(case: dict[str, Any]) -> None:
     )
     print(head)
     walks = case["config"]["walks"]
-    print(f"walks per node {walks['walks_per_node']}, walk length {walks['walk_length']}")
+    print(
+        f"walks per node {walks['walks_per_node']}, walk length {walks['walk_length']}, "
+        f"window {case['config']['embedding']['window']}, fit_limit {case.get('fit_limit')}"
+    )
     if case.get("budget_note"):
         print(f"budget: {case['budget_note']}")
     cols = ["stage", "wall_s", "cpu_s", "peak_mib", "tree_mib", "rate"]
@@ -583,11 +609,18 @@ def main(argv: list[str] | None = None) -> None:
         action="store_true",
         help="run at the configured walk settings without roles.budget.walk_budget",
     )
+    ap.add_argument("--window", type=int, help="skip-gram window instead of the default")
+    ap.add_argument(
+        "--fit-limit",
+        type=int,
+        help="cluster with roles.cluster.cluster(fit_limit=N) (in the whole run too)",
+    )
     ap.add_argument("--timeout", type=float, default=1800, help="seconds per graph and part")
     ap.add_argument("--json", metavar="FILE", help="also write the figures to FILE")
     ap.add_argument("--one", nargs=3, metavar=("KIND", "N", "PART"), help=argparse.SUPPRESS)
     args = ap.parse_args(argv)
     budget = not args.no_budget
+    OVERRIDES.update(window=args.window, fit_limit=args.fit_limit)
     if args.one:
         _child(args.one[0], int(args.one[1]), args.one[2], args.seed, budget)
         return
@@ -603,6 +636,9 @@ def main(argv: list[str] | None = None) -> None:
             for part in args.parts:
                 cmd = [sys.executable, __file__, "--one", kind, str(n), part]
                 cmd += ["--seed", str(args.seed)] + (["--no-budget"] if not budget else [])
+                for flag, value in (("--window", args.window), ("--fit-limit", args.fit_limit)):
+                    if value:
+                        cmd += [flag, str(value)]
                 try:
                     done = subprocess.run(
                         cmd, capture_output=True, text=True, timeout=args.timeout, check=False

@@ -276,6 +276,10 @@ def run(
         connected = np.asarray(degree > 0)
         isolated = [names[i] for i in np.flatnonzero(~connected)]
 
+    from .budget import walk_budget
+
+    config, walk_note = walk_budget(n, graph.number_of_edges(), config)  # user's walks kept
+
     with timer.stage("walks and embedding"):
         walk_csr = csr
         embeddings = embed_views(csr, config)
@@ -474,6 +478,7 @@ def run(
         },
         "betweenness": _betweenness_info(table),
         "confidence_budget": confidence_note,
+        "walk_budget": walk_note,
         "parameters": {**config.as_dict(), "directed": graph.is_directed()},
         "input": dict(source or {}),
         "versions": _versions(),

@@ -447,7 +447,12 @@ def part_whole(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
     graph, _ = make_graph(kind, n, seed)
     nodes, edges = graph.number_of_nodes(), graph.number_of_edges()
     generated = round(time.perf_counter() - t0, 1)
-    config, note = _config(nodes, edges, budget)
+    # roles.run applies the walk budget itself; without it, the walks count as given.
+    config, _ = _config(nodes, edges, False)
+    if not budget:
+        import dataclasses
+
+        config = dataclasses.replace(config, walks_given=True)
     with tempfile.TemporaryDirectory(prefix="roles-bench-") as tmp:
         path = Path(tmp) / "edges.csv"
         with open(path, "w", encoding="utf-8") as fh:
@@ -459,6 +464,8 @@ def part_whole(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
         with meter.stage("roles.run") as row:
             result = run(net.graph, config=config)
         run_timings = result.summary.get("timings", {})
+        note = result.summary.get("walk_budget")
+        effective = result.summary["parameters"]
         row["groups"] = result.summary["views"]["groups"]
         del net
         render = roles.report.render_report
@@ -495,7 +502,7 @@ def part_whole(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
         "part": "whole",
         "fit_limit": OVERRIDES.get("fit_limit"),
         "generate_s": generated,
-        "config": config.as_dict(),
+        "config": effective,
         "budget_note": note,
         "rows": meter.rows,
         "run_timings": run_timings,

@@ -1,4 +1,4 @@
-"""Walk budget: shorter walks for large networks, so the report stays within minutes.
+"""Walk budget: a narrower window, then shorter walks, for large networks.
 
 The walks and their skip-gram training cost time in proportion to the skip-gram
 (centre, context) pairs of a view: ``nodes * walks_per_node * walk_length * (window +
@@ -7,21 +7,28 @@ The walks and their skip-gram training cost time in proportion to the skip-gram
 (``benchmarks/bench_pipeline.py``), skip-gram trains about 1.3 million pairs per second
 per core, and the two views run side by side, one per core.
 
-Beyond :data:`MAX_PAIRS_PER_VIEW` pairs the walks are shortened, down to
-:data:`MIN_WALK_LENGTH` nodes, and only then are fewer walks started at each node, down
-to :data:`MIN_WALKS_PER_NODE`; shortening first keeps every member the start of as
-many walks. The floors come from ``benchmarks/bench_defaults.py`` (LFR graphs,
-Lancichinetti, Fortunato & Radicchi 2008, n = 1000, window 2): community recovery
-follows mostly the pairs per node, and below the floors it breaks down on loosely knit
-communities. NMI at mixing 0.1 / 0.3: 10 walks of 40 nodes 0.996 / 0.890; of 30 nodes
-0.992 / 0.790; of 20 nodes 0.950 / 0.202; 6 walks of 40 nodes 0.986 / 0.353. See
-``benchmarks/RESULTS.md``.
+Beyond :data:`MAX_PAIRS_PER_VIEW` pairs the skip-gram window is narrowed first, down to
+:data:`MIN_WINDOW`; then the walks are shortened, down to :data:`MIN_WALK_LENGTH`
+nodes; and only then are fewer walks started at each node, down to
+:data:`MIN_WALKS_PER_NODE`. The order and the floors come from
+``benchmarks/bench_defaults.py`` (LFR graphs, Lancichinetti, Fortunato & Radicchi 2008,
+n = 1000, mean NMI over mixing 0.1 and 0.3 on 16 graphs): window 2 recovers the planted
+communities as well as window 5 (0.943 against 0.919) for 60 % of the pairs, so it is
+the cheapest cut; community recovery then follows mostly the pairs per node, and below
+the walk floors it breaks down on loosely knit communities. NMI at mixing 0.1 / 0.3,
+window 2: 10 walks of 40 nodes 0.996 / 0.890; of 30 nodes 0.992 / 0.790; of 20 nodes
+0.950 / 0.202; 6 walks of 40 nodes 0.986 / 0.353. See ``benchmarks/RESULTS.md``.
 
-Apply it only to walk settings the user did not choose. A configuration whose
-``walks_given`` flag is set (a configuration file with a ``[walks]`` section) is
-returned unchanged; a caller that builds configurations another way must skip
-:func:`walk_budget` itself when the user set ``walks_per_node`` or ``walk_length``,
-since an explicit value equal to the default cannot be told apart from it.
+Small networks keep the wider default window: on Zachary's karate club (34 members)
+window 2 put nearly everyone into one group (faction agreement 17 of 34, against 31 or
+more at window 5), and below the cap the window costs little time.
+
+Apply it only to settings the user did not choose. A configuration whose
+``walks_given`` flag is set (a configuration file with a ``[walks]`` section) keeps its
+walks, one whose ``window_given`` flag is set (a ``window`` key under ``[embedding]``)
+keeps its window; a caller that builds configurations another way must set those flags
+itself when the user gave the values, since an explicit value equal to the default
+cannot be told apart from it.
 """
 
 from __future__ import annotations
@@ -34,14 +41,18 @@ __all__ = [
     "walk_budget",
     "skipgram_pairs",
     "MAX_PAIRS_PER_VIEW",
+    "MIN_WINDOW",
     "MIN_WALKS_PER_NODE",
     "MIN_WALK_LENGTH",
 ]
 
-#: Skip-gram pairs per view above which the walks are shortened: 20,000 nodes at
-#: 10 walks of 40 nodes and window 2 (about 19 s per view on one core of the measured
+#: Skip-gram pairs per view above which the window narrows and the walks shorten:
+#: 20,000 nodes at 10 walks of 40 nodes and window 2 (about 19 s per view on one core of the measured
 #: machine), the size the 60-second target is set for.
 MAX_PAIRS_PER_VIEW = 24_000_000
+
+#: Narrowest skip-gram window after scaling (context nodes on each side).
+MIN_WINDOW = 2
 
 #: Fewest walks started at each node after scaling.
 MIN_WALKS_PER_NODE = 10
@@ -58,60 +69,73 @@ def skipgram_pairs(n_nodes: int, config: Config) -> int:
 
 
 def walk_budget(n_nodes: int, n_edges: int, config: Config) -> tuple[Config, str | None]:
-    """Shorten (then thin out) the walks for a large network.
+    """Narrow the window, then shorten (then thin out) the walks, for a large network.
 
     Parameters
     ----------
     n_nodes, n_edges : int
         Size of the network (``n_edges`` counts ties once; it appears in the note).
     config : Config
-        The configuration to adjust; only ``config.walks`` may change.
+        The configuration to adjust; only ``config.walks`` and
+        ``config.embedding.window`` may change.
 
     Returns
     -------
     config : Config
-        ``config`` itself when the budget fits (or the user set the walk keys),
-        otherwise a copy with shorter or fewer walks.
+        ``config`` itself when the budget fits (or the user set the keys that would
+        change), otherwise a copy with a narrower window, shorter or fewer walks.
     note : str or None
         Plain-language sentences for the report saying what was changed and why, or
         ``None`` when nothing changed.
 
     Notes
     -----
-    Never raises a budget: walk settings already at or below a floor stay as they
-    are. Applying the function to its own result changes nothing more.
+    Never raises a setting: values already at or below a floor stay as they are.
+    Applying the function to its own result changes nothing more.
     """
-    if getattr(config, "walks_given", False):
-        return config, None
-    walks = config.walks
-    per_walk_token = (config.embedding.window + 1) * config.embedding.epochs
     if skipgram_pairs(n_nodes, config) <= MAX_PAIRS_PER_VIEW:
         return config, None
-    # Tokens each node may start: walks_per_node * walk_length.
-    allowed = MAX_PAIRS_PER_VIEW / (max(n_nodes, 1) * per_walk_token)
-    count = walks.walks_per_node
-    floor_length = min(walks.walk_length, MIN_WALK_LENGTH)
-    length = max(floor_length, min(walks.walk_length, int(allowed // count)))
-    if count * length > allowed:
-        floor_count = min(count, MIN_WALKS_PER_NODE)
-        count = max(floor_count, min(count, int(allowed // length)))
-    if (count, length) == (walks.walks_per_node, walks.walk_length):
+    walks, emb = config.walks, config.embedding
+    n = max(n_nodes, 1)
+    tokens = walks.walks_per_node * walks.walk_length * emb.epochs  # per node
+    window = emb.window
+    if not getattr(config, "window_given", False):
+        # Widest window within the cap, but not below the floor (nor above the setting).
+        fits = int(MAX_PAIRS_PER_VIEW // (n * tokens)) - 1
+        window = max(min(window, MIN_WINDOW), min(window, fits))
+    count, length = walks.walks_per_node, walks.walk_length
+    if not getattr(config, "walks_given", False):
+        # Tokens each node may start: walks_per_node * walk_length.
+        allowed = MAX_PAIRS_PER_VIEW / (n * (window + 1) * emb.epochs)
+        floor_length = min(length, MIN_WALK_LENGTH)
+        length = max(floor_length, min(length, int(allowed // count)))
+        if count * length > allowed:
+            floor_count = min(count, MIN_WALKS_PER_NODE)
+            count = max(floor_count, min(count, int(allowed // length)))
+    if (count, length, window) == (walks.walks_per_node, walks.walk_length, emb.window):
         return config, None
     scaled = dataclasses.replace(
-        config, walks=dataclasses.replace(walks, walks_per_node=count, walk_length=length)
+        config,
+        walks=dataclasses.replace(walks, walks_per_node=count, walk_length=length),
+        embedding=dataclasses.replace(emb, window=window),
     )
     changes = []
+    if window != emb.window:
+        changes.append(
+            f"each member was learned from up to {window} members either side of it on a "
+            f"walk instead of up to {emb.window}"
+        )
     if length != walks.walk_length:
         changes.append(f"each walk visited {length} members instead of {walks.walk_length}")
     if count != walks.walks_per_node:
         changes.append(f"{count} walks started from each member instead of {walks.walks_per_node}")
     note = (
         f"This network is large ({n_nodes:,} members, {n_edges:,} ties), so the random "
-        f"walks that describe each member's surroundings were cut back: "
-        f"{' and '.join(changes)}. This keeps the analysis within minutes. On test "
+        f"walks that describe each member's surroundings were used more sparingly: "
+        f"{'; '.join(changes)}. This keeps the analysis within minutes. On test "
         "networks with clearly separated communities it makes little difference; where "
-        "communities are loosely knit, the groups are less reliable. To use the full "
-        "walks, set walks_per_node and walk_length in the [walks] section of a "
-        "configuration file."
+        "communities are loosely knit, the groups are less reliable. To keep the full "
+        "settings, set walks_per_node and walk_length in the [walks] section and window "
+        "in the [embedding] section of a configuration file."
     )
     return scaled, note

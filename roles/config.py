@@ -164,6 +164,8 @@ class Config:
     confidence: ConfidenceConfig = field(default_factory=ConfidenceConfig)
     #: Whether the user set walk keys; only then is the walk budget left as given.
     walks_given: bool = field(default=False, compare=False)
+    #: Whether the user set the skip-gram window; only then is it kept for large networks.
+    window_given: bool = field(default=False, compare=False)
 
     def __post_init__(self) -> None:
         _check_int("the configuration", "seed", self.seed, 0, 2**32 - 1)
@@ -228,6 +230,8 @@ def config_from_mapping(data: Mapping[str, Any]) -> Config:
         if key in data:
             kwargs[key] = _section(data[key], f"[{key}]", cls)
     kwargs["walks_given"] = bool(data.get("walks"))
+    embedding = data.get("embedding")
+    kwargs["window_given"] = isinstance(embedding, Mapping) and "window" in embedding
     if "views" in data:
         views = data["views"]
         if not isinstance(views, Mapping):

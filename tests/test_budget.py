@@ -1,4 +1,5 @@
-"""Walk budget: large networks get shorter walks, small ones keep the configured budget."""
+"""Walk budget: large networks get a narrower window and shorter walks, small ones keep
+the configured settings."""
 
 import dataclasses
 
@@ -7,6 +8,7 @@ import pytest
 from roles.budget import (
     MAX_PAIRS_PER_VIEW,
     MIN_WALK_LENGTH,
+    MIN_WINDOW,
     MIN_WALKS_PER_NODE,
     skipgram_pairs,
     walk_budget,
@@ -65,11 +67,40 @@ def test_walks_are_shortened_before_they_are_thinned():
     assert got.walks.walks_per_node == 10
 
 
-def test_only_the_walk_settings_change():
+def test_only_the_walk_settings_and_the_window_change():
     config = Config(seed=7, embedding=EmbeddingConfig(dimensions=32, window=3))
     got, _ = walk_budget(100000, 1000000, config)
     assert got.walks != config.walks
-    assert dataclasses.replace(got, walks=config.walks) == config
+    assert got.embedding.window == MIN_WINDOW
+    same = dataclasses.replace(got, walks=config.walks, embedding=config.embedding)
+    assert same == config
+
+
+def test_the_window_narrows_before_the_walks_shorten():
+    # 15,000 nodes at 10 walks of 40: window 5 is 36M pairs, window 3 is 24M (the cap).
+    got, note = walk_budget(15000, 150000, _config(window=5))
+    assert got.walks == WalkConfig(10, 40)
+    assert got.embedding.window == 3
+    assert _pairs(15000, got) <= MAX_PAIRS_PER_VIEW
+    assert "up to 3" in note and "up to 5" in note
+    # One step wider would break the cap.
+    wider = dataclasses.replace(got, embedding=EmbeddingConfig(window=4))
+    assert _pairs(15000, wider) > MAX_PAIRS_PER_VIEW
+
+
+def test_small_networks_keep_the_default_window():
+    # Zachary's karate club needs the wider window (see roles/budget.py); the demos too.
+    for n in (34, 198, 270, 10000):
+        got, note = walk_budget(n, 10 * n, Config())
+        assert got.embedding.window == Config().embedding.window
+        assert note is None
+
+
+def test_a_narrow_window_is_never_widened():
+    config = _config(window=1)
+    got, _ = walk_budget(100000, 1000000, config)
+    assert got.embedding.window == 1
+    assert got.walks.walk_length < 40
 
 
 def test_budget_uses_the_allowance():
@@ -102,12 +133,32 @@ def test_a_small_configured_budget_is_never_raised():
     config = Config(walks=WalkConfig(walks_per_node=2, walk_length=10))
     got, note = walk_budget(10**6, 10**7, config)
     assert got.walks == config.walks
-    assert note is None
+    assert got.embedding.window == MIN_WINDOW  # only the window narrows
+    assert "walk visited" not in note
 
 
 def test_walk_keys_set_by_the_user_are_left_alone():
     config = config_from_mapping({"walks": {"walks_per_node": 10, "walk_length": 40}})
-    assert config.walks_given
+    assert config.walks_given and not config.window_given
+    got, note = walk_budget(100000, 1000000, config)
+    assert got.walks == config.walks
+    assert got.embedding.window == MIN_WINDOW  # the window was not given: it narrows
+    assert "walk visited" not in note
+
+
+def test_a_window_set_by_the_user_is_left_alone():
+    config = config_from_mapping({"embedding": {"window": 5}})
+    assert config.window_given and not config.walks_given
+    got, note = walk_budget(100000, 1000000, config)
+    assert got.embedding.window == 5
+    assert got.walks.walk_length == MIN_WALK_LENGTH
+    assert "either side" not in note
+
+
+def test_settings_all_given_are_left_alone():
+    config = config_from_mapping(
+        {"walks": {"walks_per_node": 10, "walk_length": 40}, "embedding": {"window": 5}}
+    )
     got, note = walk_budget(100000, 1000000, config)
     assert got is config
     assert note is None

@@ -11,7 +11,13 @@ from dataclasses import dataclass
 
 import numpy as np
 
-__all__ = ["Comparison", "compare_views", "neighbour_overlap"]
+__all__ = [
+    "Comparison",
+    "compare_views",
+    "nearest_neighbours",
+    "neighbour_overlap",
+    "neighbour_count",
+]
 
 
 @dataclass(frozen=True, eq=False)
@@ -37,7 +43,18 @@ class Comparison:
     k: int
 
 
-def _neighbours(vectors: np.ndarray, k: int) -> np.ndarray:
+def neighbour_count(n: int, k: int = 10) -> int:
+    """Neighbours compared per node among ``n`` nodes: ``k``, at most ``n - 1``."""
+    return max(1, min(k, n - 1)) if n > 1 else 0
+
+
+def nearest_neighbours(vectors: np.ndarray, k: int) -> np.ndarray:
+    """Indices of each row's ``k`` nearest other rows by cosine similarity, nearest first.
+
+    Exact search (scikit-learn's brute force at these dimensions). Each view's search
+    can run in the process that computed the view; :func:`compare_views` takes the
+    results.
+    """
     from sklearn.neighbors import NearestNeighbors
 
     x = np.asarray(vectors, dtype=np.float64)
@@ -83,8 +100,8 @@ def neighbour_overlap(a: np.ndarray, b: np.ndarray, *, k: int = 10) -> np.ndarra
     n = a.shape[0]
     if n < 2:
         return np.ones(n)
-    k = max(1, min(k, n - 1))
-    return _jaccard_rows(_neighbours(a, k), _neighbours(b, k))
+    k = neighbour_count(n, k)
+    return _jaccard_rows(nearest_neighbours(a, k), nearest_neighbours(b, k))
 
 
 def compare_views(
@@ -94,8 +111,12 @@ def compare_views(
     far_labels: np.ndarray,
     *,
     k: int = 10,
+    neighbours: tuple[np.ndarray, np.ndarray] | None = None,
 ) -> Comparison:
     """Agreement of the two views, as groupings and node by node.
+
+    ``neighbours``, when given, holds each view's :func:`nearest_neighbours` of the
+    rows (``neighbour_count(n, k)`` columns), so the searches are not repeated here.
 
     References
     ----------
@@ -106,11 +127,18 @@ def compare_views(
     from sklearn.metrics.cluster import contingency_matrix
 
     n = len(local_labels)
-    k_used = max(1, min(k, n - 1)) if n > 1 else 0
+    k_used = neighbour_count(n, k)
+    if neighbours is not None:
+        a, b = neighbours
+        if a.shape != (n, k_used) or b.shape != (n, k_used):
+            raise ValueError(f"neighbour lists must have shape {(n, k_used)}")
+        overlap = _jaccard_rows(a, b)
+    else:
+        overlap = neighbour_overlap(local_vectors, far_vectors, k=k)
     return Comparison(
         ari=float(adjusted_rand_score(local_labels, far_labels)),
         nmi=float(normalized_mutual_info_score(local_labels, far_labels)),
         contingency=np.asarray(contingency_matrix(local_labels, far_labels)),
-        overlap=neighbour_overlap(local_vectors, far_vectors, k=k),
+        overlap=overlap,
         k=k_used,
     )

@@ -27,9 +27,10 @@ import multiprocessing
 import os
 import tempfile
 import zlib
-from collections.abc import Iterator
+from collections.abc import Callable, Iterator
 from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 
@@ -37,7 +38,14 @@ from .config import Config, EmbeddingConfig, ViewConfig, WalkConfig
 from .graph import CSRGraph
 from .walks import generate_walks, visit_counts, walk_lengths
 
-__all__ = ["Embedding", "embed_walks", "embed_views", "untrained_nodes", "FEEDS"]
+__all__ = [
+    "Embedding",
+    "embed_walks",
+    "embed_views",
+    "embed_views_then",
+    "untrained_nodes",
+    "FEEDS",
+]
 
 #: Ways of handing the walks to gensim; see ``benchmarks/bench_walks.py`` for the choice.
 FEEDS = ("corpus_file", "iterable")
@@ -320,6 +328,13 @@ def _embed_view(
     )
 
 
+def _embed_view_then(
+    then: Callable[[str, Embedding], Any] | None, *args: Any
+) -> tuple[Embedding, Any]:
+    embedding = _embed_view(*args)
+    return embedding, (then(embedding.view, embedding) if then is not None else None)
+
+
 def embed_views(
     csr: CSRGraph,
     config: Config,
@@ -362,6 +377,38 @@ def embed_views(
     .. [1] A. Grover and J. Leskovec, "node2vec: Scalable feature learning for
        networks", KDD 2016. https://doi.org/10.1145/2939672.2939754
     """
+    done = embed_views_then(csr, config, None, keep_walks=keep_walks, processes=processes)
+    return {name: embedding for name, (embedding, _) in done.items()}
+
+
+def embed_views_then(
+    csr: CSRGraph,
+    config: Config,
+    then: Callable[[str, Embedding], Any] | None,
+    *,
+    keep_walks: bool = False,
+    processes: int | None = None,
+) -> dict[str, tuple[Embedding, Any]]:
+    """:func:`embed_views`, then ``then(view, embedding)`` in the process of each view.
+
+    The work that follows each view (grouping its vectors, say) then runs on both cores
+    as the embeddings do, and only its result travels back.
+
+    Parameters
+    ----------
+    then : callable or None
+        Called once per view with the view's name and :class:`Embedding`, in the
+        process that computed it. With two processes it must be picklable (a module-level
+        function, or a :func:`functools.partial` of one) and so must its result.
+    csr, config, keep_walks, processes
+        As for :func:`embed_views`.
+
+    Returns
+    -------
+    dict
+        ``{"local": (Embedding, result), "far": (Embedding, result)}``; ``result`` is
+        ``None`` when ``then`` is ``None``.
+    """
     seeds = _view_seeds(config.seed)
     jobs = {
         name: (csr, view, name, config.walks, config.embedding, seeds[name], keep_walks)
@@ -373,12 +420,12 @@ def embed_views(
     if multiprocessing.current_process().daemon:
         processes = 1
     if processes <= 1:
-        return {name: _embed_view(*args) for name, args in jobs.items()}
+        return {name: _embed_view_then(then, *args) for name, args in jobs.items()}
     # The far view goes to one fresh process while this one computes the local view:
     # one process start instead of two. "spawn", because numba's and gensim's threads
     # do not survive fork().
     context = multiprocessing.get_context("spawn")
     with ProcessPoolExecutor(max_workers=1, mp_context=context) as pool:
-        far = pool.submit(_embed_view, *jobs["far"])
-        local = _embed_view(*jobs["local"])
+        far = pool.submit(_embed_view_then, then, *jobs["far"])
+        local = _embed_view_then(then, *jobs["local"])
         return {"local": local, "far": far.result()}

@@ -6,6 +6,7 @@ The stages only read what earlier stages returned; the report reads the
 
 from __future__ import annotations
 
+import functools
 import platform
 import time
 from collections.abc import Callable, Iterator, Mapping
@@ -18,7 +19,7 @@ import numpy as np
 import pandas as pd
 
 from .cluster import Grouping, cluster
-from .compare import Comparison, compare_views
+from .compare import Comparison, compare_views, nearest_neighbours, neighbour_count
 from .config import Config
 from .errors import InputError
 from .graph import to_csr
@@ -203,6 +204,45 @@ def _modularity(graph: nx.Graph, labels: Mapping[Any, int]) -> float:
     return float(nx.community.modularity(und, parts.values(), weight="weight"))
 
 
+@dataclass(frozen=True, eq=False)
+class _ViewWork:
+    """What the process of one view hands back besides its vectors."""
+
+    grouping: Grouping
+    neighbours: np.ndarray | None
+    seconds: dict[str, float]
+
+
+def _group_view(
+    view: str,
+    embedding: Any,
+    *,
+    idx: np.ndarray,
+    seeds: Mapping[str, int],
+    min_cluster_size: int,
+    reduce_to: int,
+    k: int,
+    min_steps: float,
+) -> _ViewWork | None:
+    """Group one view's connected members and find their nearest neighbours.
+
+    Runs in the process that computed the view (:func:`roles.embed.embed_views_then`).
+    Returns ``None``, doing nothing, when the view's walks averaged fewer than
+    ``min_steps`` steps: the pipeline then walks the ties both ways and asks again.
+    """
+    if embedding.n_steps / max(embedding.n_walks, 1) < min_steps:
+        return None
+    x = np.asarray(embedding.vectors)[idx]
+    seconds = {}
+    start = time.perf_counter()
+    grouping = cluster(x, min_cluster_size=min_cluster_size, reduce_to=reduce_to, seed=seeds[view])
+    seconds["clustering"] = round(time.perf_counter() - start, 3)
+    start = time.perf_counter()
+    neighbours = nearest_neighbours(x, k) if k else None
+    seconds["neighbours"] = round(time.perf_counter() - start, 3)
+    return _ViewWork(grouping, neighbours, seconds)
+
+
 def run(
     graph: nx.Graph,
     *,
@@ -245,7 +285,7 @@ def run(
     >>> result.summary["communities"]           # doctest: +SKIP
     2
     """
-    from .embed import embed_views
+    from .embed import embed_views_then
     from .measures import rank_bridges, rank_hubs, role_table
 
     config = config or Config()
@@ -280,34 +320,39 @@ def run(
 
     config, walk_note = walk_budget(n, graph.number_of_edges(), config)  # user's walks kept
 
-    with timer.stage("walks and embedding"):
+    idx = np.flatnonzero(connected)
+    k = neighbour_count(len(idx)) if len(idx) >= 3 else 0
+    group_view = functools.partial(
+        _group_view,
+        idx=idx,
+        seeds={"local": seeds[2], "far": seeds[3]},
+        min_cluster_size=config.cluster.min_cluster_size,
+        reduce_to=config.cluster.reduce_to,
+        k=k,
+        min_steps=0.0,
+    )
+    with timer.stage("walks, embedding and clustering"):
         walk_csr = csr
-        embeddings = embed_views(csr, config)
         walk_basis = "ties followed in their direction" if csr.directed else "ties"
         if csr.directed:
-            steps = min(e.n_steps / max(e.n_walks, 1) for e in embeddings.values())
-            if steps < SHORT_WALKS * (config.walks.walk_length - 1):
-                # Walks in a supply network run downstream and stop at the last tier,
-                # which leaves too little context to group anyone: walk the ties both
-                # ways for the views (dependents still follow the direction).
+            # Walks in a supply network run downstream and stop at the last tier,
+            # which leaves too little context to group anyone: then walk the ties both
+            # ways for the views (dependents still follow the direction).
+            short = SHORT_WALKS * (config.walks.walk_length - 1)
+            views = embed_views_then(csr, config, functools.partial(group_view, min_steps=short))
+            if any(work is None for _, work in views.values()):
+                steps = min(e.n_steps / max(e.n_walks, 1) for e, _ in views.values())
                 walk_csr = to_csr(graph.to_undirected(as_view=True))
-                embeddings = embed_views(walk_csr, config)
+                views = embed_views_then(walk_csr, config, group_view)
                 walk_basis = (
                     f"ties in both directions: walks that followed the direction ended "
                     f"after {steps:.1f} of {config.walks.walk_length - 1} steps on average"
                 )
-    vectors = {view: np.asarray(e.vectors) for view, e in embeddings.items()}
-
-    groupings: dict[str, Grouping] = {}
-    idx = np.flatnonzero(connected)
-    with timer.stage("clustering"):
-        for i, view in enumerate(("local", "far")):
-            groupings[view] = cluster(
-                vectors[view][idx],
-                min_cluster_size=config.cluster.min_cluster_size,
-                reduce_to=config.cluster.reduce_to,
-                seed=seeds[2 + i],
-            )
+        else:
+            views = embed_views_then(csr, config, group_view)
+    vectors = {view: np.asarray(e.vectors) for view, (e, _) in views.items()}
+    work: dict[str, _ViewWork] = {view: w for view, (_, w) in views.items()}
+    groupings: dict[str, Grouping] = {view: w.grouping for view, w in work.items()}
 
     # Group labels per node: 1-based by size; 0 for members with no ties.
     def full(labels: np.ndarray) -> np.ndarray:
@@ -334,12 +379,14 @@ def run(
     with timer.stage("comparison"):
         comparison = None
         overlap = np.full(n, np.nan)
-        if len(idx) >= 3:
+        if k:
             comparison = compare_views(
                 vectors["local"][idx],
                 vectors["far"][idx],
                 groupings["local"].labels,
                 groupings["far"].labels,
+                k=k,
+                neighbours=(work["local"].neighbours, work["far"].neighbours),
             )
             overlap[idx] = comparison.overlap
 
@@ -483,6 +530,7 @@ def run(
         "input": dict(source or {}),
         "versions": _versions(),
         "timings": timer.timings,
+        "view_timings": {view: w.seconds for view, w in work.items()},
     }
     if confidence is not None:
         summary.update(confidence.as_summary())

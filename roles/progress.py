@@ -15,8 +15,7 @@ __all__ = ["StageBar", "REPORT_STAGES"]
 #: The stages of ``roles report`` in the order the pipeline runs them.
 REPORT_STAGES = (
     "graph",
-    "walks and embedding",
-    "clustering",
+    "walks, embedding and clustering",
     "roles and measures",
     "comparison",
     "confidence",

@@ -1,9 +1,10 @@
 """Agreement of the two views."""
 
 import numpy as np
+import pytest
 from sklearn.metrics import adjusted_rand_score, normalized_mutual_info_score
 
-from roles.compare import compare_views, neighbour_overlap
+from roles.compare import compare_views, nearest_neighbours, neighbour_count, neighbour_overlap
 
 
 def test_identical_views_overlap_fully():
@@ -71,3 +72,24 @@ def test_overlap_with_duplicate_points():
     got = neighbour_overlap(a, b, k=4)
     assert np.array_equal(got, _overlap_by_sets(a, b, 4))
     assert np.all((got >= 0) & (got <= 1))
+
+
+def test_precomputed_neighbours_give_the_same_comparison():
+    rng = np.random.default_rng(11)
+    a, b = rng.normal(size=(80, 6)), rng.normal(size=(80, 6))
+    la, lb = rng.integers(0, 3, 80), rng.integers(0, 3, 80)
+    k = neighbour_count(80)
+    given = (nearest_neighbours(a, k), nearest_neighbours(b, k))
+    with_lists = compare_views(a, b, la, lb, neighbours=given)
+    searched = compare_views(a, b, la, lb)
+    assert np.array_equal(with_lists.overlap, searched.overlap)
+    assert with_lists.k == searched.k == 10
+    # The lists are each row's nearest others by cosine, checked by a plain sort here.
+    unit = a / np.linalg.norm(a, axis=1, keepdims=True)
+    sim = unit @ unit.T
+    np.fill_diagonal(sim, -np.inf)
+    assert np.array_equal(
+        np.sort(given[0], axis=1), np.sort(np.argsort(-sim, axis=1)[:, :k], axis=1)
+    )
+    with pytest.raises(ValueError):
+        compare_views(a, b, la, lb, neighbours=(given[0][:, :5], given[1]))

@@ -14,7 +14,14 @@ import numpy as np
 import pytest
 
 from roles.config import Config, EmbeddingConfig, WalkConfig
-from roles.embed import FEEDS, Embedding, embed_views, embed_walks, untrained_nodes
+from roles.embed import (
+    FEEDS,
+    Embedding,
+    embed_views,
+    embed_views_then,
+    embed_walks,
+    untrained_nodes,
+)
 from roles.graph import to_csr
 from roles.walks import generate_walks
 
@@ -148,3 +155,26 @@ def test_views_in_two_processes_match_one_process() -> None:
     assert not np.allclose(together["local"].vectors, together["far"].vectors)
     other = embed_views(csr, dataclasses.replace(config, seed=6), processes=1)
     assert not np.allclose(other["local"].vectors, apart["local"].vectors)
+
+
+def _where_and_what(view: str, embedding: Embedding) -> tuple[int, str, str]:
+    # Module level, so a spawned process can unpickle it.
+    return os.getpid(), view, hashlib.sha256(embedding.vectors.tobytes()).hexdigest()
+
+
+def test_follow_up_runs_beside_each_view() -> None:
+    csr = to_csr(nx.karate_club_graph())
+    config = _config()
+    together = embed_views_then(csr, config, _where_and_what, processes=2)
+    apart = embed_views_then(csr, config, _where_and_what, processes=1)
+    plain = embed_views(csr, config, processes=1)
+    for name in ("local", "far"):
+        for embedding, (_pid, view, digest) in (together[name], apart[name]):
+            assert view == name
+            assert digest == hashlib.sha256(plain[name].vectors.tobytes()).hexdigest()
+            assert embedding.vectors.tobytes() == plain[name].vectors.tobytes()
+        assert apart[name][1][0] == os.getpid()
+    # With two processes the far view and its follow-up ran in the other process.
+    assert together["local"][1][0] == os.getpid()
+    assert together["far"][1][0] != os.getpid()
+    assert embed_views_then(csr, config, None, processes=1)["far"][1] is None

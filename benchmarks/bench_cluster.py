@@ -1,0 +1,105 @@
+"""HDBSCAN on every row against HDBSCAN on a sample (``cluster(..., fit_limit=N)``).
+
+For planted-community graphs (the generator of ``bench_pipeline.py``, mixing 0.2,
+average degree 20) this script computes both views once, as ``roles.run`` would (walk
+budget applied), caches the vectors, then groups each view with HDBSCAN fitted on all
+rows and on random samples of several sizes, and prints wall seconds, groups, noise share
+and NMI (scikit-learn) against the planted communities. The sample seed varies, so the
+spread of a sampled fit shows too.
+
+Run: ``.venv/bin/python benchmarks/bench_cluster.py [--sizes 50000 100000]
+[--limits 0 20000 30000] [--repeats 2] [--json FILE]`` (``0`` = every row).
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+import tempfile
+import time
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+
+
+def _vectors(n: int, seed: int, cache: Path) -> tuple[dict[str, np.ndarray], np.ndarray, str]:
+    path = cache / f"roles-bench-cluster-{n}-{seed}.npz"
+    if path.exists():
+        data = np.load(path)
+        return {"local": data["local"], "far": data["far"]}, data["truth"], str(data["walks"])
+    import networkx as nx
+    from bench_pipeline import make_graph
+
+    from roles.budget import walk_budget
+    from roles.config import Config
+    from roles.embed import embed_views
+    from roles.graph import to_csr
+
+    graph, truth = make_graph("planted", n, seed)
+    graph = nx.relabel_nodes(graph, {v: str(v) for v in graph}, copy=True)
+    config, _ = walk_budget(graph.number_of_nodes(), graph.number_of_edges(), Config())
+    embeddings = embed_views(to_csr(graph), config)
+    walks = (
+        f"{config.walks.walks_per_node}x{config.walks.walk_length}, "
+        f"window {config.embedding.window}"
+    )
+    vectors = {v: np.asarray(e.vectors) for v, e in embeddings.items()}
+    np.savez(path, truth=np.asarray(truth), walks=walks, **vectors)
+    return vectors, np.asarray(truth), walks
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--sizes", type=int, nargs="+", default=[50000, 100000])
+    ap.add_argument("--limits", type=int, nargs="+", default=[0, 20000, 30000])
+    ap.add_argument("--repeats", type=int, default=2, help="sample seeds per sampled fit")
+    ap.add_argument("--seed", type=int, default=1, help="seed of the generated graphs")
+    ap.add_argument("--cache", default=tempfile.gettempdir(), help="folder for the vectors")
+    ap.add_argument("--json", metavar="FILE")
+    args = ap.parse_args()
+
+    from sklearn.metrics import normalized_mutual_info_score
+
+    from roles.cluster import cluster
+
+    rows: list[dict[str, Any]] = []
+    print("| nodes | walks | view | fit on | sample seed | wall s | groups | noise | NMI |")
+    print("|---|---|---|---|---|---|---|---|---|")
+    for n in args.sizes:
+        vectors, truth, walks = _vectors(n, args.seed, Path(args.cache))
+        for view in ("local", "far"):
+            for limit in args.limits:
+                repeats = 1 if limit == 0 or limit >= n else args.repeats
+                for r in range(repeats):
+                    start = time.perf_counter()
+                    g = cluster(vectors[view], seed=r, fit_limit=limit or None)
+                    wall = time.perf_counter() - start
+                    nmi = float(normalized_mutual_info_score(truth, g.labels))
+                    row = {
+                        "nodes": n,
+                        "walks": walks,
+                        "view": view,
+                        "fit_limit": limit or None,
+                        "sample_seed": r if limit else None,
+                        "wall_s": round(wall, 1),
+                        "groups": g.n_groups,
+                        "noise": round(g.noise_share, 3),
+                        "nmi": round(nmi, 3),
+                    }
+                    rows.append(row)
+                    print(
+                        f"| {n:,} | {walks} | {view} | {f'{limit:,}' if limit else 'all'} | "
+                        f"{r if limit else '-'} | {wall:.1f} | {g.n_groups} | "
+                        f"{g.noise_share:.2f} | {nmi:.3f} |",
+                        flush=True,
+                    )
+    if args.json:
+        Path(args.json).write_text(json.dumps(rows, indent=2) + "\n", encoding="utf-8")
+
+
+if __name__ == "__main__":
+    main()

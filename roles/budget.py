@@ -47,8 +47,8 @@ __all__ = [
 ]
 
 #: Skip-gram pairs per view above which the window narrows and the walks shorten:
-#: 20,000 nodes at 10 walks of 40 nodes and window 2 (about 19 s per view on one core of the measured
-#: machine), the size the 60-second target is set for.
+#: 20,000 nodes at 10 walks of 40 nodes and window 2 (about 19 s per view on one core
+#: of the measured machine), the size the 60-second target is set for.
 MAX_PAIRS_PER_VIEW = 24_000_000
 
 #: Narrowest skip-gram window after scaling (context nodes on each side).

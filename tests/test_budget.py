@@ -8,8 +8,8 @@ import pytest
 from roles.budget import (
     MAX_PAIRS_PER_VIEW,
     MIN_WALK_LENGTH,
-    MIN_WINDOW,
     MIN_WALKS_PER_NODE,
+    MIN_WINDOW,
     skipgram_pairs,
     walk_budget,
 )

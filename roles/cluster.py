@@ -37,6 +37,9 @@ class Grouping:
         The HDBSCAN ``min_cluster_size`` that was used.
     dimensions : int
         Dimensions after PCA.
+    fitted : int
+        Rows HDBSCAN was fitted on: all of them, or the random sample of ``fit_limit``
+        rows (0 when there were too few rows to group).
     """
 
     labels: np.ndarray
@@ -45,6 +48,7 @@ class Grouping:
     n_groups: int
     min_cluster_size: int
     dimensions: int
+    fitted: int = 0
 
     @property
     def noise_share(self) -> float:
@@ -222,11 +226,13 @@ def cluster(
     x = _reduce(vectors, reduce_to, seed)
     if fit_limit is not None and n > fit_limit >= 4:
         hard, strength, outlier = _fit_sampled(x, size, fit_limit, seed)
+        fitted = fit_limit
     else:
         hard, strength, outlier = _fit(x, size)
+        fitted = n
     found = int(hard.max()) + 1 if hard.size else 0
     if found == 0:
-        return Grouping(none.labels, none.membership, none.was_noise, 0, size, x.shape[1])
+        return Grouping(none.labels, none.membership, none.was_noise, 0, size, x.shape[1], fitted)
     labels = hard.astype(np.int64).copy()
     membership = strength.copy()
     noise = hard < 0
@@ -240,4 +246,5 @@ def cluster(
         n_groups=int(labels.max()) + 1,
         min_cluster_size=size,
         dimensions=int(x.shape[1]),
+        fitted=fitted,
     )

@@ -123,14 +123,29 @@ def _far_default() -> ViewConfig:
 
 @dataclass(frozen=True)
 class ClusterConfig:
-    """HDBSCAN settings; ``min_cluster_size = 0`` means: chosen from the node count."""
+    """HDBSCAN settings; ``min_cluster_size = 0`` means: chosen from the node count.
+
+    ``fit_limit``: HDBSCAN is fitted on at most this many members, chosen at random,
+    and every other member takes the verdict of its nearest fitted members; 0 fits
+    every member. On a planted-community test network of 50,000 members a fit on 20,000
+    scored as well as a fit on all (NMI against the planted communities: local view
+    0.79-0.81 against 0.80, far view 0.73 against 0.71) in a quarter of the time
+    (``benchmarks/bench_cluster.py``, two sample seeds).
+    """
 
     min_cluster_size: int = 0
     reduce_to: int = 16
+    fit_limit: int = 20000
 
     def __post_init__(self) -> None:
         _check_int("[cluster]", "min_cluster_size", self.min_cluster_size, 0, 100000)
         _check_int("[cluster]", "reduce_to", self.reduce_to, 2, 256)
+        _check_int("[cluster]", "fit_limit", self.fit_limit, 0, 100_000_000)
+        if 0 < self.fit_limit < 100:
+            raise ConfigError(
+                "The 'fit_limit' parameter of [cluster] must be 0 (fit every member) or a "
+                f"whole number of at least 100. Got {self.fit_limit!r} instead."
+            )
 
 
 @dataclass(frozen=True)

@@ -62,12 +62,14 @@ def test_fit_limit_at_or_above_n_changes_nothing():
     same = cluster(x, seed=1, fit_limit=400)
     assert np.array_equal(full.labels, same.labels)
     assert np.array_equal(full.membership, same.membership)
+    assert full.fitted == same.fitted == 400
 
 
 def test_sampled_fit_recovers_separated_blobs():
     # Truth: the generating blob (scikit-learn make_blobs); the fit sees a third of them.
     x, truth = make_blobs(n_samples=3000, centers=5, n_features=32, cluster_std=0.8, random_state=6)
     g = cluster(x, seed=2, fit_limit=1000)
+    assert g.fitted == 1000
     assert g.n_groups == 5
     assert adjusted_rand_score(truth, g.labels) > 0.95
     assert g.labels.shape == (3000,) and g.labels.min() >= 0

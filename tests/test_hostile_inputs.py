@@ -505,6 +505,8 @@ def test_config_unknown_keys(tmp_path, text, words):
         ("[embedding]\ndimensions = 5000\n", ["'dimensions'", "Got 5000"]),
         ("seed = -4\n", ["'seed'", "Got -4"]),
         ("[cluster]\nreduce_to = 1\n", ["'reduce_to'", "Got 1"]),
+        ("[cluster]\nfit_limit = 50\n", ["'fit_limit'", "0 (fit every member)", "Got 50"]),
+        ("[cluster]\nfit_limit = -1\n", ["'fit_limit'", "Got -1"]),
     ],
 )
 def test_config_out_of_range(tmp_path, text, words):

@@ -117,3 +117,27 @@ def test_directed_supply_chain_dependents():
     result = run(g)
     dep = result.nodes.set_index("node").dependents
     assert dep["b"] == 1 and dep["a"] == 0 and dep["s"] == 1
+
+
+def test_lfr_communities_survive_a_sampled_fit(lfr):
+    # As above (Lancichinetti, Fortunato & Radicchi 2008, mixing 0.1), but HDBSCAN sees
+    # only half of the members; the report must say so.
+    from roles.config import ClusterConfig, ConfidenceConfig
+
+    graph, truth = lfr
+    config = Config(
+        seed=3,
+        cluster=ClusterConfig(fit_limit=250),
+        confidence=ConfidenceConfig(runs=0, randomisations=0),
+    )
+    result = run(graph, config=config)
+    assert {g.fitted for g in result.groupings.values()} == {250}
+    assert "250 randomly chosen members of the 500" in result.summary["cluster_budget"]
+    table = result.nodes.set_index("node")
+    found = [table.community[str(n)] for n in graph]
+    assert normalized_mutual_info_score([truth[n] for n in graph], found) >= 0.9
+
+
+def test_the_default_fit_uses_every_member(karate_result):
+    assert {g.fitted for g in karate_result.groupings.values()} == {34}
+    assert karate_result.summary["cluster_budget"] is None

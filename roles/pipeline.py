@@ -23,6 +23,7 @@ from .compare import Comparison, compare_views, nearest_neighbours, neighbour_co
 from .config import Config
 from .errors import InputError
 from .graph import to_csr
+from .modularity import louvain, modularity
 
 __all__ = ["Result", "run", "choose_community_view", "stage_seeds"]
 
@@ -202,22 +203,6 @@ def _betweenness_info(table: pd.DataFrame) -> dict[str, Any]:
     return dataclasses.asdict(info) if info is not None else {}
 
 
-def _louvain(graph: nx.Graph, seed: int) -> list[set]:
-    und = graph.to_undirected() if graph.is_directed() else graph
-    return list(nx.community.louvain_communities(und, weight="weight", seed=seed))
-
-
-def _modularity(graph: nx.Graph, labels: Mapping[Any, int]) -> float:
-    und = graph.to_undirected() if graph.is_directed() else graph
-    und = und.subgraph([n for n in und if und.degree(n) > 0])
-    if und.number_of_edges() == 0:
-        return 0.0
-    parts: dict[int, set] = {}
-    for node in und:
-        parts.setdefault(labels[node], set()).add(node)
-    return float(nx.community.modularity(und, parts.values(), weight="weight"))
-
-
 @dataclass(frozen=True, eq=False)
 class _ViewWork:
     """What the process of one view hands back besides its vectors."""
@@ -384,10 +369,16 @@ def run(
 
     view_labels = {view: full(g.labels) for view, g in groupings.items()}
     cluster_note = _sampled_fit_note(groupings, len(idx))
+    # Modularity reads ties as undirected (Newman 2006), as the walks do when they go
+    # both ways.
+    if not csr.directed:
+        tie_csr = csr
+    elif not walk_csr.directed:
+        tie_csr = walk_csr
+    else:
+        tie_csr = to_csr(graph.to_undirected(as_view=True))
     view_modularity = {
-        view: _modularity(graph, dict(zip(names, labels.tolist(), strict=True)))
-        if groupings[view].n_groups > 0
-        else float("nan")
+        view: modularity(tie_csr, labels) if groupings[view].n_groups > 0 else float("nan")
         for view, labels in view_labels.items()
     }
     community_view = choose_community_view(view_modularity)
@@ -439,18 +430,13 @@ def run(
             )
 
     with timer.stage("modularity check"):
-        louvain = _louvain(graph, seeds[5])
-        louvain_of = {node: i for i, part in enumerate(louvain) for node in part}
+        louvain_labels = louvain(tie_csr, seed=seeds[5])
         from sklearn.metrics import normalized_mutual_info_score
 
-        conn_names = [names[i] for i in idx]
-        louvain_nmi = float(
-            normalized_mutual_info_score(
-                [louvain_of[x] for x in conn_names], [community_of[x] for x in conn_names]
-            )
-        )
-        q_found = _modularity(graph, community_of)
-        q_louvain = _modularity(graph, louvain_of)
+        louvain_nmi = float(normalized_mutual_info_score(louvain_labels[idx], communities[idx]))
+        q_found = modularity(tie_csr, communities)
+        q_louvain = modularity(tie_csr, louvain_labels)
+        louvain_groups = len(np.unique(louvain_labels[idx]))
 
     nodes = pd.DataFrame({"node": names})
     nodes["community"] = communities
@@ -543,7 +529,7 @@ def run(
         "modularity": {
             "communities": round(q_found, 4),
             "louvain": round(q_louvain, 4),
-            "louvain_groups": len(louvain),
+            "louvain_groups": louvain_groups,
             "nmi_with_louvain": round(louvain_nmi, 4),
         },
         "betweenness": _betweenness_info(table),

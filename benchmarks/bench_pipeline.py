@@ -317,7 +317,10 @@ def _config(n: int, m: int, budget: bool) -> tuple[Any, str | None]:
     config = Config()
     if OVERRIDES.get("window"):
         embedding = dataclasses.replace(config.embedding, window=OVERRIDES["window"])
-        config = dataclasses.replace(config, embedding=embedding)
+        config = dataclasses.replace(config, embedding=embedding, window_given=True)
+    if OVERRIDES.get("fit_limit") is not None:
+        clustering = dataclasses.replace(config.cluster, fit_limit=OVERRIDES["fit_limit"])
+        config = dataclasses.replace(config, cluster=clustering)
     if not budget:
         return config, None
     from roles.budget import walk_budget
@@ -391,7 +394,7 @@ def part_stages(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
                 min_cluster_size=config.cluster.min_cluster_size,
                 reduce_to=config.cluster.reduce_to,
                 seed=seeds[2 + i],
-                fit_limit=OVERRIDES.get("fit_limit"),
+                fit_limit=config.cluster.fit_limit or None,
             )
         g = groupings[view]
         row["groups"] = g.n_groups
@@ -411,14 +414,16 @@ def part_stages(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
         )
         row["k"] = comparison.k
     with meter.stage("Louvain check"):
-        nx.community.louvain_communities(graph, seed=seeds[5])
+        from roles.modularity import louvain
+
+        louvain(csr, seed=seeds[5])
     meter.sampler.stop()
     return {
         "kind": kind,
         "nodes": graph.number_of_nodes(),
         "edges": graph.number_of_edges(),
         "part": "stages",
-        "fit_limit": OVERRIDES.get("fit_limit"),
+        "fit_limit": config.cluster.fit_limit,
         "generate_s": generated,
         "config": config.as_dict(),
         "budget_note": note,
@@ -434,14 +439,6 @@ def part_whole(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
     from roles.load import load_edges
     from roles.pipeline import run
 
-    if OVERRIDES.get("fit_limit"):
-        # Preview of the proposed wiring: the pipeline passing fit_limit to cluster().
-        import functools
-
-        import roles.pipeline
-        from roles.cluster import cluster
-
-        roles.pipeline.cluster = functools.partial(cluster, fit_limit=OVERRIDES["fit_limit"])
     meter = _Meter()
     t0 = time.perf_counter()
     graph, _ = make_graph(kind, n, seed)
@@ -452,7 +449,7 @@ def part_whole(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
     if not budget:
         import dataclasses
 
-        config = dataclasses.replace(config, walks_given=True)
+        config = dataclasses.replace(config, walks_given=True, window_given=True)
     with tempfile.TemporaryDirectory(prefix="roles-bench-") as tmp:
         path = Path(tmp) / "edges.csv"
         with open(path, "w", encoding="utf-8") as fh:
@@ -500,7 +497,7 @@ def part_whole(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
         "nodes": nodes,
         "edges": edges,
         "part": "whole",
-        "fit_limit": OVERRIDES.get("fit_limit"),
+        "fit_limit": config.cluster.fit_limit,
         "generate_s": generated,
         "config": effective,
         "budget_note": note,
@@ -620,7 +617,7 @@ def main(argv: list[str] | None = None) -> None:
     ap.add_argument(
         "--fit-limit",
         type=int,
-        help="cluster with roles.cluster.cluster(fit_limit=N) (in the whole run too)",
+        help="[cluster] fit_limit instead of the default (0: fit every row)",
     )
     ap.add_argument("--timeout", type=float, default=1800, help="seconds per graph and part")
     ap.add_argument("--json", metavar="FILE", help="also write the figures to FILE")
@@ -644,7 +641,7 @@ def main(argv: list[str] | None = None) -> None:
                 cmd = [sys.executable, __file__, "--one", kind, str(n), part]
                 cmd += ["--seed", str(args.seed)] + (["--no-budget"] if not budget else [])
                 for flag, value in (("--window", args.window), ("--fit-limit", args.fit_limit)):
-                    if value:
+                    if value is not None:
                         cmd += [flag, str(value)]
                 try:
                     done = subprocess.run(

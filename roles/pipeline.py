@@ -310,7 +310,8 @@ def run(
                 f"there is no attribute column {group_by!r} to group by. "
                 f"Columns of the nodes file: {known}."
             )
-    graph = nx.relabel_nodes(graph, {n: str(n) for n in graph}, copy=True)
+    if not all(isinstance(node, str) for node in graph):
+        graph = nx.relabel_nodes(graph, {n: str(n) for n in graph}, copy=True)
     seeds = stage_seeds(config.seed)
     timer = _Timer(progress)
     names = [str(n) for n in graph.nodes()]

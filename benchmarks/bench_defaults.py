@@ -34,6 +34,7 @@ import argparse
 import dataclasses
 import json
 import os
+import sys
 import time
 from pathlib import Path
 from typing import Any
@@ -47,6 +48,9 @@ from roles.config import Config
 from roles.embed import embed_views
 from roles.graph import to_csr
 from roles.pipeline import choose_community_view, stage_seeds
+
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+from bench_views import lfr  # noqa: E402  (the same LFR graphs as bench_views.py)
 
 DEFAULT = Config()
 MIXING = (0.1, 0.3)
@@ -69,35 +73,6 @@ _SECTION = {
     "epochs": "embedding",
     "reduce_to": "cluster",
 }
-
-
-def lfr(n: int, mu: float, seed: int) -> tuple[nx.Graph, np.ndarray]:
-    """networkx's LFR graph with the parameters of ``bench_views.py``; planted community
-    per node (the smallest community id where the generator lists several)."""
-    for attempt in range(20):
-        try:
-            g = nx.LFR_benchmark_graph(
-                n,
-                2.5,
-                1.5,
-                mu,
-                average_degree=10,
-                max_degree=50,
-                min_community=20,
-                max_community=100,
-                seed=seed + 1000 * attempt,
-            )
-            break
-        except nx.ExceededMaxIterations:
-            continue
-    else:
-        raise RuntimeError("LFR generation failed 20 times")
-    g.remove_edges_from(nx.selfloop_edges(g))
-    plain = nx.Graph()
-    plain.add_nodes_from(g)
-    plain.add_edges_from(g.edges())
-    truth = np.asarray([min(g.nodes[v]["community"]) for v in plain])
-    return plain, truth
 
 
 def with_setting(config: Config, name: str, value: int) -> Config:

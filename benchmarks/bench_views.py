@@ -20,10 +20,14 @@ from roles.cluster import cluster
 from roles.config import Config
 from roles.embed import embed_views
 from roles.graph import to_csr
-from roles.pipeline import _modularity, choose_community_view
+from roles.modularity import modularity as modularity_of
+from roles.pipeline import choose_community_view
 
 
-def lfr(n: int, mu: float, seed: int) -> tuple[nx.Graph, list[int]]:
+def lfr(n: int, mu: float, seed: int) -> tuple[nx.Graph, np.ndarray]:
+    """networkx's LFR graph (tau1 2.5, tau2 1.5, average degree 10, maximum degree 50,
+    communities 20-100); planted community per node (the smallest community id where
+    the generator lists several). Also used by ``bench_defaults.py``."""
     for attempt in range(20):
         try:
             g = nx.LFR_benchmark_graph(
@@ -46,7 +50,7 @@ def lfr(n: int, mu: float, seed: int) -> tuple[nx.Graph, list[int]]:
     plain = nx.Graph()
     plain.add_nodes_from(g)
     plain.add_edges_from(g.edges())
-    truth = [min(g.nodes[v]["community"]) for v in plain]
+    truth = np.asarray([min(g.nodes[v]["community"]) for v in plain])
     return plain, truth
 
 
@@ -71,8 +75,8 @@ def main() -> None:
                 nmi[name] = normalized_mutual_info_score(truth, grouping.labels)
                 scores[name].append(nmi[name])
                 groups[name].append(grouping.n_groups)
-                labels = dict(zip(g, grouping.labels.tolist(), strict=True))
-                modularity[name] = _modularity(g, labels) if grouping.n_groups else np.nan
+                q = modularity_of(csr, grouping.labels) if grouping.n_groups else np.nan
+                modularity[name] = q
             scores["chosen"].append(nmi[choose_community_view(modularity)])
             parts = nx.community.louvain_communities(g, seed=s)
             lab = {v: i for i, p in enumerate(parts) for v in p}

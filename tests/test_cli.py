@@ -4,27 +4,11 @@ from __future__ import annotations
 
 import csv
 import json
-import os
-import subprocess
-import sys
 from pathlib import Path
 
 import networkx as nx
 import pytest
-
-ROOT = Path(__file__).resolve().parent.parent
-
-
-def roles(*args: str, cwd: Path = ROOT) -> subprocess.CompletedProcess:
-    env = dict(os.environ, PYTHONPATH=str(ROOT))
-    return subprocess.run(
-        [sys.executable, "-m", "roles", *args],
-        cwd=cwd,
-        env=env,
-        capture_output=True,
-        text=True,
-        timeout=600,
-    )
+from _cli import ROOT, roles
 
 
 @pytest.fixture(scope="module")

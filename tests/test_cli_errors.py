@@ -13,20 +13,7 @@ from pathlib import Path
 
 import networkx as nx
 import pytest
-
-ROOT = Path(__file__).resolve().parent.parent
-
-
-def roles(*args: str, cwd: Path) -> subprocess.CompletedProcess:
-    env = dict(os.environ, PYTHONPATH=str(ROOT))
-    return subprocess.run(
-        [sys.executable, "-m", "roles", *args],
-        cwd=cwd,
-        env=env,
-        capture_output=True,
-        text=True,
-        timeout=300,
-    )
+from _cli import ROOT, roles
 
 
 def snapshot(folder: Path) -> dict[str, bytes]:

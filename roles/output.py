@@ -80,6 +80,11 @@ def safe_cell(value: Any) -> str:
     """
     if value is None:
         return ""
+    kind = type(value)
+    if kind is int:  # the common cases first, without the abstract-class checks
+        return str(value)
+    if kind is float and math.isfinite(value):
+        return repr(value)
     if isinstance(value, numbers.Real) and not isinstance(value, bool):
         if isinstance(value, numbers.Integral):
             return str(int(value))

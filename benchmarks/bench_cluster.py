@@ -8,12 +8,14 @@ and NMI (scikit-learn) against the planted communities. The sample seed varies, 
 spread of a sampled fit shows too.
 
 Run: ``.venv/bin/python benchmarks/bench_cluster.py [--sizes 50000 100000]
-[--limits 0 20000 30000] [--repeats 2] [--json FILE]`` (``0`` = every row).
+[--limits 0 20000 30000] [--repeats 2] [--windows 0 5] [--json FILE]`` (limit ``0``:
+every row; window ``0``: the one ``roles.budget.walk_budget`` picks).
 """
 
 from __future__ import annotations
 
 import argparse
+import dataclasses
 import json
 import sys
 import tempfile
@@ -26,8 +28,10 @@ import numpy as np
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 
 
-def _vectors(n: int, seed: int, cache: Path) -> tuple[dict[str, np.ndarray], np.ndarray, str]:
-    path = cache / f"roles-bench-cluster-{n}-{seed}.npz"
+def _vectors(
+    n: int, seed: int, cache: Path, window: int | None
+) -> tuple[dict[str, np.ndarray], np.ndarray, str]:
+    path = cache / f"roles-bench-cluster-{n}-{seed}-w{window or 'budget'}.npz"
     if path.exists():
         data = np.load(path)
         return {"local": data["local"], "far": data["far"]}, data["truth"], str(data["walks"])
@@ -41,7 +45,11 @@ def _vectors(n: int, seed: int, cache: Path) -> tuple[dict[str, np.ndarray], np.
 
     graph, truth = make_graph("planted", n, seed)
     graph = nx.relabel_nodes(graph, {v: str(v) for v in graph}, copy=True)
-    config, _ = walk_budget(graph.number_of_nodes(), graph.number_of_edges(), Config())
+    config = Config()
+    if window:  # kept by the budget, as a window the user set
+        embedding = dataclasses.replace(config.embedding, window=window)
+        config = dataclasses.replace(config, embedding=embedding, window_given=True)
+    config, _ = walk_budget(graph.number_of_nodes(), graph.number_of_edges(), config)
     embeddings = embed_views(to_csr(graph), config)
     walks = (
         f"{config.walks.walks_per_node}x{config.walks.walk_length}, "
@@ -59,6 +67,9 @@ def main() -> None:
     ap.add_argument("--repeats", type=int, default=2, help="sample seeds per sampled fit")
     ap.add_argument("--seed", type=int, default=1, help="seed of the generated graphs")
     ap.add_argument("--cache", default=tempfile.gettempdir(), help="folder for the vectors")
+    ap.add_argument(
+        "--windows", type=int, nargs="+", default=[0], help="skip-gram windows (0: the budget's)"
+    )
     ap.add_argument("--json", metavar="FILE")
     args = ap.parse_args()
 
@@ -69,8 +80,8 @@ def main() -> None:
     rows: list[dict[str, Any]] = []
     print("| nodes | walks | view | fit on | sample seed | wall s | groups | noise | NMI |")
     print("|---|---|---|---|---|---|---|---|---|")
-    for n in args.sizes:
-        vectors, truth, walks = _vectors(n, args.seed, Path(args.cache))
+    for n, window in ((n, w) for n in args.sizes for w in args.windows):
+        vectors, truth, walks = _vectors(n, args.seed, Path(args.cache), window)
         for view in ("local", "far"):
             for limit in args.limits:
                 repeats = 1 if limit == 0 or limit >= n else args.repeats

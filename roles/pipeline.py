@@ -222,16 +222,11 @@ def _group_view(
     reduce_to: int,
     fit_limit: int | None,
     k: int,
-    min_steps: float,
-) -> _ViewWork | None:
+) -> _ViewWork:
     """Group one view's connected members and find their nearest neighbours.
 
     Runs in the process that computed the view (:func:`roles.embed.embed_views_then`).
-    Returns ``None``, doing nothing, when the view's walks averaged fewer than
-    ``min_steps`` steps: the pipeline then walks the ties both ways and asks again.
     """
-    if embedding.n_steps / max(embedding.n_walks, 1) < min_steps:
-        return None
     x = np.asarray(embedding.vectors)[idx]
     seconds = {}
     start = time.perf_counter()
@@ -247,6 +242,24 @@ def _group_view(
     neighbours = nearest_neighbours(x, k) if k else None
     seconds["neighbours"] = round(time.perf_counter() - start, 3)
     return _ViewWork(grouping, neighbours, seconds)
+
+
+def _trial_steps(csr: Any, config: Config, seed: int) -> float:
+    """Fewest steps, on average over one walk per member, of either view's walks."""
+    from .walks import generate_walks, walk_lengths
+
+    steps = []
+    for i, view in enumerate(config.views.values()):
+        walks = generate_walks(
+            csr,
+            walks_per_node=1,
+            walk_length=config.walks.walk_length,
+            p=view.p,
+            q=view.q,
+            seed=int(np.random.SeedSequence([seed, i]).generate_state(1)[0]),
+        )
+        steps.append(float(np.maximum(walk_lengths(walks) - 1, 0).mean()))
+    return min(steps)
 
 
 def run(
@@ -337,7 +350,6 @@ def run(
         reduce_to=config.cluster.reduce_to,
         fit_limit=config.cluster.fit_limit or None,
         k=k,
-        min_steps=0.0,
     )
     with timer.stage("walks, embedding and clustering"):
         walk_csr = csr
@@ -345,19 +357,17 @@ def run(
         if csr.directed:
             # Walks in a supply network run downstream and stop at the last tier,
             # which leaves too little context to group anyone: then walk the ties both
-            # ways for the views (dependents still follow the direction).
-            short = SHORT_WALKS * (config.walks.walk_length - 1)
-            views = embed_views_then(csr, config, functools.partial(group_view, min_steps=short))
-            if any(work is None for _, work in views.values()):
-                steps = min(e.n_steps / max(e.n_walks, 1) for e, _ in views.values())
+            # ways for the views (dependents still follow the direction). One trial
+            # walk per member and view tells, before any training is spent.
+            steps = _trial_steps(csr, config, seeds[7])
+            if steps < SHORT_WALKS * (config.walks.walk_length - 1):
                 walk_csr = to_csr(graph.to_undirected(as_view=True))
-                views = embed_views_then(walk_csr, config, group_view)
                 walk_basis = (
                     f"ties in both directions: walks that followed the direction ended "
-                    f"after {steps:.1f} of {config.walks.walk_length - 1} steps on average"
+                    f"after {steps:.1f} of {config.walks.walk_length - 1} steps on average "
+                    "(one trial walk per member and view)"
                 )
-        else:
-            views = embed_views_then(csr, config, group_view)
+        views = embed_views_then(walk_csr, config, group_view)
     vectors = {view: np.asarray(e.vectors) for view, (e, _) in views.items()}
     work: dict[str, _ViewWork] = {view: w for view, (_, w) in views.items()}
     groupings: dict[str, Grouping] = {view: w.grouping for view, w in work.items()}

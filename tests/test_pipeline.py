@@ -141,3 +141,27 @@ def test_lfr_communities_survive_a_sampled_fit(lfr):
 def test_the_default_fit_uses_every_member(karate_result):
     assert {g.fitted for g in karate_result.groupings.values()} == {34}
     assert karate_result.summary["cluster_budget"] is None
+
+
+def test_directed_walks_are_kept_unless_they_run_dry():
+    # Karate with every tie in both directions: directed walks never stop, so the views
+    # follow the direction. A layered supply chain (5 tiers, ties only downstream):
+    # walks stop within 4 steps of 39, so the views walk the ties both ways.
+    from roles.config import ConfidenceConfig
+
+    quick = Config(confidence=ConfidenceConfig(runs=0, randomisations=0))
+    both_ways = nx.DiGraph(nx.karate_club_graph())
+    result = run(both_ways, config=quick)
+    assert result.summary["walks_over"] == "ties followed in their direction"
+    rng = np.random.default_rng(5)
+    tiers = [list(range(t * 40, (t + 1) * 40)) for t in range(5)]
+    chain = nx.DiGraph()
+    for upper, lower in zip(tiers, tiers[1:]):
+        for firm in lower:
+            for supplier in rng.choice(upper, size=2, replace=False):
+                chain.add_edge(int(supplier), firm)
+    result = run(chain, config=quick)
+    basis = result.summary["walks_over"]
+    assert basis.startswith("ties in both directions")
+    steps = float(basis.split("after ")[1].split(" of")[0])
+    assert steps <= 4.0

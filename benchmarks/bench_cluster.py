@@ -8,7 +8,8 @@ and NMI (scikit-learn) against the planted communities. The sample seed varies, 
 spread of a sampled fit shows too.
 
 Run: ``.venv/bin/python benchmarks/bench_cluster.py [--sizes 50000 100000]
-[--limits 0 20000 30000] [--repeats 2] [--windows 0 5] [--json FILE]`` (limit ``0``:
+[--limits 0 20000 30000] [--repeats 2] [--windows 0 5] [--min-sizes 0 10]
+[--json FILE]`` (limit ``0``:
 every row; window ``0``: the one ``roles.budget.walk_budget`` picks).
 """
 
@@ -70,6 +71,9 @@ def main() -> None:
     ap.add_argument(
         "--windows", type=int, nargs="+", default=[0], help="skip-gram windows (0: the budget's)"
     )
+    ap.add_argument(
+        "--min-sizes", type=int, nargs="+", default=[0], help="HDBSCAN smallest group (0: default)"
+    )
     ap.add_argument("--json", metavar="FILE")
     args = ap.parse_args()
 
@@ -78,16 +82,21 @@ def main() -> None:
     from roles.cluster import cluster
 
     rows: list[dict[str, Any]] = []
-    print("| nodes | walks | view | fit on | sample seed | wall s | groups | noise | NMI |")
-    print("|---|---|---|---|---|---|---|---|---|")
+    print(
+        "| nodes | walks | view | fit on | smallest group | sample seed | wall s | groups "
+        "| noise | NMI |"
+    )
+    print("|---|---|---|---|---|---|---|---|---|---|")
     for n, window in ((n, w) for n in args.sizes for w in args.windows):
         vectors, truth, walks = _vectors(n, args.seed, Path(args.cache), window)
         for view in ("local", "far"):
-            for limit in args.limits:
+            for limit, size in ((lim, m) for lim in args.limits for m in args.min_sizes):
                 repeats = 1 if limit == 0 or limit >= n else args.repeats
                 for r in range(repeats):
                     start = time.perf_counter()
-                    g = cluster(vectors[view], seed=r, fit_limit=limit or None)
+                    g = cluster(
+                        vectors[view], min_cluster_size=size, seed=r, fit_limit=limit or None
+                    )
                     wall = time.perf_counter() - start
                     nmi = float(normalized_mutual_info_score(truth, g.labels))
                     row = {
@@ -95,6 +104,7 @@ def main() -> None:
                         "walks": walks,
                         "view": view,
                         "fit_limit": limit or None,
+                        "min_cluster_size": g.min_cluster_size,
                         "sample_seed": r if limit else None,
                         "wall_s": round(wall, 1),
                         "groups": g.n_groups,
@@ -104,8 +114,8 @@ def main() -> None:
                     rows.append(row)
                     print(
                         f"| {n:,} | {walks} | {view} | {f'{limit:,}' if limit else 'all'} | "
-                        f"{r if limit else '-'} | {wall:.1f} | {g.n_groups} | "
-                        f"{g.noise_share:.2f} | {nmi:.3f} |",
+                        f"{g.min_cluster_size} | {r if limit else '-'} | {wall:.1f} | "
+                        f"{g.n_groups} | {g.noise_share:.2f} | {nmi:.3f} |",
                         flush=True,
                     )
     if args.json:

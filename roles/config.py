@@ -123,7 +123,8 @@ def _far_default() -> ViewConfig:
 
 @dataclass(frozen=True)
 class ClusterConfig:
-    """HDBSCAN settings; ``min_cluster_size = 0`` means: chosen from the node count.
+    """HDBSCAN settings; ``min_cluster_size = 0`` means the default (5 members, see
+    :func:`roles.cluster.default_min_cluster_size`).
 
     ``fit_limit``: HDBSCAN is fitted on at most this many members, chosen at random,
     and every other member takes the verdict of its nearest fitted members; 0 fits

@@ -156,7 +156,7 @@ def test_directed_walks_are_kept_unless_they_run_dry():
     rng = np.random.default_rng(5)
     tiers = [list(range(t * 40, (t + 1) * 40)) for t in range(5)]
     chain = nx.DiGraph()
-    for upper, lower in zip(tiers, tiers[1:]):
+    for upper, lower in zip(tiers, tiers[1:], strict=False):
         for firm in lower:
             for supplier in rng.choice(upper, size=2, replace=False):
                 chain.add_edge(int(supplier), firm)

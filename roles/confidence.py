@@ -4,10 +4,11 @@ Two questions a reader of the report asks before acting on a group:
 
 1. **Does the network have community structure at all?** Even random graphs show high
    modularity by chance [1]_. :func:`structure_test` compares the best modularity an
-   optimiser (networkx Louvain [2]_) finds on the network with the best the same
-   optimiser finds on degree-preserving randomisations of it (double edge swaps [3]_),
-   as Guimera, Sales-Pardo & Amaral do [1]_, and asks whether the report's communities
-   are more modular than what the optimiser finds in the randomised networks.
+   optimiser (Louvain [2]_, compiled in :mod:`roles.modularity`) finds on the network
+   with the best the same optimiser finds on degree-preserving randomisations of it
+   (double edge swaps [3]_, compiled in :mod:`roles.swaps`), as Guimera, Sales-Pardo &
+   Amaral do [1]_, and asks whether the network holds clearly more modular partitions
+   than the randomised networks do.
 2. **Would the groups come back with another seed?** :func:`stability` re-runs the
    embedding and the clustering with other seeds and measures, for every node, how much
    of its set of co-members returns (Jaccard index [4]_), and for every community the
@@ -35,11 +36,14 @@ References
 from __future__ import annotations
 
 import dataclasses
+import functools
+import itertools
 import math
 import multiprocessing
 import os
 import time
 from collections.abc import Iterable, Iterator, Mapping, Sequence
+from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass
 from typing import Any
 
@@ -48,6 +52,8 @@ import numpy as np
 
 from .config import Config
 from .graph import CSRGraph
+from .modularity import louvain, modularity
+from .swaps import Swapped, double_edge_swap, edges_to_csr_arrays
 
 __all__ = [
     "StructureTest",
@@ -81,17 +87,14 @@ STABLE_JACCARD = 0.75
 PATTERN_JACCARD = 0.6
 
 # Budget of the structure test (see structure_budget and benchmarks/bench_confidence.py).
-_FULL_TEST_EDGES = 20_000
+_FULL_TEST_EDGES = 1_000_000
 _FULL_SWAPS_EDGES = 10_000
 _SWAPS_PER_EDGE = 10.0
 _SWAPS_PER_EDGE_LARGE = 3.0
-_MIN_RANDOMISATIONS_LARGE = 5
-_HUGE_EDGES = 500_000
-_MIN_RANDOMISATIONS_HUGE = 3
+_MIN_RANDOMISATIONS_LARGE = 10
 
-# Below these sizes, starting worker processes (about 2 s each, mostly imports) costs
-# more than it saves; see benchmarks/bench_confidence.py.
-_PARALLEL_MIN_EDGES = 5_000
+# Below this many walk steps per re-run, starting worker processes (about 2 s each,
+# mostly imports) costs more than it saves; see benchmarks/bench_confidence.py.
 _PARALLEL_MIN_TOKENS = 500_000
 
 # Budget of the stability check (see stability_budget).
@@ -218,14 +221,16 @@ class StructureTest:
                 "communities": _num(self.modularity_communities),
                 "best_found": _num(self.modularity_best),
                 "weighted": False,
-                "optimiser": "networkx louvain_communities (resolution 1)",
+                "optimiser": "Louvain, compiled (roles.modularity.louvain, resolution 1)",
             },
             "randomised": {
                 "mean": _num(self.null_mean),
                 "sd": _num(self.null_sd),
                 f"quantile_{round(NULL_QUANTILE * 100)}": _num(self.null_quantile),
                 "values": [_num(v) for v in self.null],
-                "method": "degree-preserving double edge swaps (networkx double_edge_swap)",
+                "method": (
+                    "degree-preserving double edge swaps, compiled (roles.swaps.double_edge_swap)"
+                ),
                 "swaps_per_edge": self.swaps_per_edge,
                 "short_of_swaps": self.swaps_short,
             },
@@ -247,14 +252,21 @@ def structure_budget(edges: int, randomisations: int) -> tuple[int, float, str]:
     """Randomisations and swaps per tie the structure test spends on ``edges`` ties.
 
     Swaps: 10 per tie up to 10,000 ties, 3 per tie beyond. Randomisations: every one
-    asked for up to 20,000 ties; beyond, ``randomisations * 20,000 / edges``, but at
-    least 5 (at least 3 beyond 500,000 ties), and never more than asked for. The best
-    modularity found in randomised networks settles after one to two swaps per tie and
-    varies less the larger the network (standard deviation 0.004 at 5,000 ties, 0.002 at
-    100,000), while one randomisation costs more than in proportion to the ties: Louvain
-    needs about 0.1 s on a randomised network of 5,000 ties, 1.5 s at 25,000 and 50 s at
-    100,000 (CPU seconds, ``benchmarks/bench_confidence.py``). Fewer, shorter
-    randomisations therefore lose little on large networks.
+    asked for up to 1,000,000 ties (the largest networks the tool is measured on);
+    beyond, ``randomisations * 1,000,000 / edges``, but at least 10, and never more than
+    asked for.
+
+    The best modularity found in randomised networks settles after one to two swaps per
+    tie (planted-partition networks of 10,000 and 200,000 ties: the same mean from 1 to
+    20 swaps per tie, within its standard deviation of 0.0004 to 0.004). With the
+    compiled swaps and Louvain, one randomisation at 3 swaps per tie costs about 0.2 CPU
+    seconds at 200,000 ties and 1.6 at 1,000,000 (swaps 0.8 s, Louvain 0.75 s), and the
+    whole test with 20 randomisations on two threads takes 0.1 s wall at 10,000 ties,
+    2.4 s at 200,000 and 19 s (36 CPU seconds) at 1,000,000; networkx's swaps and
+    Louvain took 0.9 and 10 CPU seconds per randomisation at 10,000 and 200,000 ties
+    (``benchmarks/bench_confidence.py``). Keeping every randomisation keeps the
+    empirical p-value's floor at ``1 / (randomisations + 1)``; beyond a million ties the
+    cost grows with the ties and the randomisations are thinned.
 
     Returns
     -------
@@ -264,7 +276,7 @@ def structure_budget(edges: int, randomisations: int) -> tuple[int, float, str]:
         raise ValueError(f"randomisations must be >= 0; got {randomisations}")
     spe = _SWAPS_PER_EDGE if edges <= _FULL_SWAPS_EDGES else _SWAPS_PER_EDGE_LARGE
     used = randomisations
-    floor = _MIN_RANDOMISATIONS_LARGE if edges <= _HUGE_EDGES else _MIN_RANDOMISATIONS_HUGE
+    floor = _MIN_RANDOMISATIONS_LARGE
     if edges > _FULL_TEST_EDGES:
         scaled = int(randomisations * _FULL_TEST_EDGES // edges)
         used = min(randomisations, max(floor, scaled))
@@ -277,55 +289,66 @@ def structure_budget(edges: int, randomisations: int) -> tuple[int, float, str]:
     return used, spe, note
 
 
-def _test_graph(graph: nx.Graph) -> nx.Graph:
-    """Simple undirected graph of the ties: no direction, weights, self-loops or isolates."""
-    h = nx.Graph()
-    h.add_edges_from((u, v) for u, v in graph.edges() if u != v)
-    return h
+def _test_arrays(graph: nx.Graph) -> tuple[list, np.ndarray, np.ndarray]:
+    """The simple undirected graph of the ties: its nodes and its ties as index arrays.
+
+    Direction, weights, repeated ties, self-loops and nodes without ties are dropped.
+    Nodes keep the graph's order; ties come sorted, ``u < v``.
+    """
+    nodes = list(graph.nodes())
+    index = {v: i for i, v in enumerate(nodes)}
+    flat = np.fromiter(
+        itertools.chain.from_iterable((index[a], index[b]) for a, b in graph.edges()),
+        dtype=np.int64,
+        count=2 * graph.number_of_edges(),
+    )
+    a, b = flat[0::2], flat[1::2]
+    keep = a != b
+    lo, hi = np.minimum(a[keep], b[keep]), np.maximum(a[keep], b[keep])
+    n = len(nodes)
+    key = np.unique(lo * n + hi)
+    lo, hi = key // n, key % n
+    tied = np.zeros(n, dtype=bool)
+    tied[lo] = True
+    tied[hi] = True
+    new = np.cumsum(tied) - 1
+    return [nodes[i] for i in np.flatnonzero(tied)], new[lo], new[hi]
 
 
-def _best_modularity(h: nx.Graph, seed: int) -> float:
-    parts = nx.community.louvain_communities(h, weight=None, resolution=1, seed=seed)
-    return float(nx.community.modularity(h, parts, weight=None))
+def _csr(names: tuple[str, ...], u: np.ndarray, v: np.ndarray) -> CSRGraph:
+    """The unweighted undirected CSRGraph of the ties ``u[e]-v[e]``."""
+    indptr, indices = edges_to_csr_arrays(u, v, len(names))
+    weights = np.ones(indices.shape[0], dtype=np.float32)
+    return CSRGraph(names=names, indptr=indptr, indices=indices, weights=weights, directed=False)
 
 
-def _build(nodes: list, edges: list) -> nx.Graph:
-    """The test graph, rebuilt the same way in every process (swaps depend on order)."""
-    g = nx.Graph()
-    g.add_nodes_from(nodes)
-    g.add_edges_from(edges)
-    return g
+def _best_modularity(csr: CSRGraph, seed: int) -> float:
+    """Modularity of the Louvain partition (compiled, :mod:`roles.modularity`)."""
+    return modularity(csr, louvain(csr, seed=seed))
 
 
-def _randomised(h: nx.Graph, swaps_per_edge: float, seed: int) -> tuple[nx.Graph, bool]:
-    """A degree-preserving randomisation of ``h`` and whether every swap was made."""
-    r = h.copy()
-    nswap = max(1, int(round(swaps_per_edge * r.number_of_edges())))
-    try:
-        nx.double_edge_swap(r, nswap=nswap, max_tries=50 * nswap + 100, seed=seed)
-    except nx.NetworkXAlgorithmError:
-        # Out of tries: the swaps made so far stand (networkx swaps in place).
-        return r, False
-    return r, True
+def _randomised(
+    u: np.ndarray, v: np.ndarray, n: int, swaps_per_edge: float, seed: int
+) -> tuple[Swapped, bool]:
+    """A degree-preserving randomisation of the ties and whether every swap was made."""
+    nswap = max(1, int(round(swaps_per_edge * len(u))))
+    r = double_edge_swap(u, v, n_nodes=n, nswap=nswap, max_tries=50 * nswap + 100, seed=seed)
+    return r, r.swaps == nswap
 
 
-def _null_one(h: nx.Graph, job: tuple[float, int, int]) -> tuple[float, bool]:
+def _null_one(
+    names: tuple[str, ...], u: np.ndarray, v: np.ndarray, job: tuple[float, int, int]
+) -> tuple[float, bool]:
     swaps_per_edge, swap_seed, louvain_seed = job
-    r, complete = _randomised(h, swaps_per_edge, swap_seed)
-    return _best_modularity(r, louvain_seed), complete
+    r, complete = _randomised(u, v, len(names), swaps_per_edge, swap_seed)
+    return _best_modularity(_csr(names, r.u, r.v), louvain_seed), complete
 
 
-_worker_graph: nx.Graph | None = None
-
-
-def _init_null_worker(nodes: list, edges: list) -> None:
-    global _worker_graph
-    _worker_graph = _build(nodes, edges)
-
-
-def _null_job(job: tuple[float, int, int]) -> tuple[float, bool]:
-    assert _worker_graph is not None
-    return _null_one(_worker_graph, job)
+def _threads(requested: int | None, jobs: int) -> int:
+    """Threads for the randomisations: as asked, else 2 on a machine with 2+ cores."""
+    if requested is None:
+        requested = 2 if (os.cpu_count() or 1) > 1 else 1
+    return max(1, min(int(requested), jobs))
 
 
 def _processes(requested: int | None, worth_it: bool, jobs: int) -> int:
@@ -352,7 +375,7 @@ def structure_test(
     randomisations: int = 20,
     seed: int = 0,
     swaps_per_edge: float | None = None,
-    processes: int | None = None,
+    threads: int | None = None,
 ) -> StructureTest:
     """Test whether ``graph`` has community structure beyond what its degrees produce.
 
@@ -370,10 +393,10 @@ def structure_test(
         Seeds the swaps and Louvain runs (through ``numpy.random.SeedSequence``).
     swaps_per_edge : float, optional
         Double edge swaps per tie; by default chosen by :func:`structure_budget`.
-    processes : int, optional
-        Randomisations made at once, in separate processes. By default 2 from 5,000
-        ties on (on a machine with two or more cores), else 1. The figures do not
-        depend on it: each randomisation has its own seed.
+    threads : int, optional
+        Randomisations made at once, in threads of this process (the compiled swaps and
+        Louvain release the GIL). By default 2 on a machine with two or more cores, else
+        1. The figures do not depend on it: each randomisation has its own seeds.
 
     Returns
     -------
@@ -385,11 +408,15 @@ def structure_test(
     finds in a random graph can be high, so a high figure alone says little. They
     compare the network's modularity with that of random networks with the same degrees.
     Here both the network and each randomised copy are partitioned by the same
-    optimiser (networkx's Louvain method [3]_ with a fixed seed), so the comparison
-    asks "does the optimiser find more than it would in a network without structure?".
-    Randomised networks are made by double edge swaps [4]_ (networkx
+    optimiser (the Louvain method [3]_, compiled: :func:`roles.modularity.louvain`, with
+    a fixed seed), so the comparison asks "does the optimiser find more than it would in
+    a network without structure?". Randomised networks are made by double edge swaps
+    [4]_ (:func:`roles.swaps.double_edge_swap`, compiled, the move of networkx's
     ``double_edge_swap``: two ties a-b, c-d become a-c, b-d when neither exists), which
-    keep every node's degree.
+    keep every node's degree. On small test networks (LFR, Erdos-Renyi and
+    Barabasi-Albert graphs of 250 to 300 nodes, 40 randomisations each) the randomised
+    networks' best modularity has the same mean and spread as with networkx's swaps and
+    Louvain (``benchmarks/bench_confidence.py``).
 
     The verdict (:data:`Z_MIN`, :data:`NULL_QUANTILE`): clear when ``z >= 3`` and the
     network's best modularity is above the 95% quantile of the randomised networks'
@@ -397,16 +424,15 @@ def structure_test(
     report's own communities are deliberately not held to the randomised networks' best
     modularity: that is a maximum over all partitions, and a correct but coarse
     partition can lie below it. The planted partition of networkx's LFR example graph
-    (n=250, mu=0.1, seed=10) has modularity 0.38 against 0.42 for the best partitions
+    (n=250, mu=0.1, seed=10) has modularity 0.37 against 0.42 for the best partitions
     of its randomisations, because one community holds 157 of the 250 nodes. Whether
     the communities themselves hold up is measured by :func:`stability`.
 
     Modularity is unweighted because swaps move ties, and there is no single right way
     to carry weights along; the question here is whether the pattern of ties has
     groups. Direction is dropped as in the pipeline's own modularity figure. Memory is
-    O(E): one copy of the network, and one randomised copy per process at a time.
-    Worker processes are started with "spawn": a script calling this at import level
-    must put the call under ``if __name__ == "__main__":``.
+    O(E): the network's ties, and one randomised copy (ties, hash table, CSR arrays,
+    Louvain's arrays) per thread at a time, about 120 MiB per thread at a million ties.
 
     References
     ----------
@@ -430,15 +456,15 @@ def structure_test(
     True
     """
     start = time.perf_counter()
-    h = _test_graph(graph)
-    n, m = h.number_of_nodes(), h.number_of_edges()
+    nodes, u, v = _test_arrays(graph)
+    n, m = len(nodes), len(u)
     used, spe, note = structure_budget(m, randomisations)
     if swaps_per_edge is not None:
         if not swaps_per_edge > 0:
             raise ValueError(f"swaps_per_edge must be > 0; got {swaps_per_edge}")
         spe = float(swaps_per_edge)
         note = f"{used} randomised networks, {spe:g} swaps per tie"
-    missing = [v for v in h if v not in labels]
+    missing = [x for x in nodes if x not in labels]
     if missing:
         raise ValueError(f"labels has no community for {len(missing)} nodes, e.g. {missing[0]!r}")
 
@@ -466,27 +492,27 @@ def structure_test(
             seconds=time.perf_counter() - start,
         )
 
-    parts: dict[int, set] = {}
-    for v in h:
-        parts.setdefault(labels[v], set()).add(v)
-    q_ours = float(nx.community.modularity(h, parts.values(), weight=None))
-
-    nodes, edges = list(h.nodes()), list(h.edges())
-    del h
-    base = _build(nodes, edges)
+    codes: dict[Any, int] = {}
+    ours = np.fromiter((codes.setdefault(labels[x], len(codes)) for x in nodes), np.int64, n)
+    names = tuple(str(x) for x in nodes)
+    base = _csr(names, u, v)
+    q_ours = modularity(base, ours)
     seeds = np.random.SeedSequence(seed).spawn(used + 1)
     q_best = _best_modularity(base, int(seeds[0].generate_state(1)[0]))
+    del base
     jobs: list[tuple[float, int, int]] = []
     for child in seeds[1:]:
         swap_seed, louvain_seed = (int(x) for x in child.generate_state(2))
         jobs.append((spe, swap_seed, louvain_seed))
-    workers = _processes(processes, m >= _PARALLEL_MIN_EDGES, len(jobs))
+    workers = _threads(threads, len(jobs))
     if workers > 1:
-        with _pool(workers, initializer=_init_null_worker, initargs=(nodes, edges)) as pool:
-            results = list(pool.map(_null_job, jobs))
+        # The compiled swaps and Louvain release the GIL: threads share the ties
+        # without copying them or starting processes.
+        with ThreadPoolExecutor(max_workers=workers) as pool:
+            results = list(pool.map(functools.partial(_null_one, names, u, v), jobs))
         note += f", {workers} at a time"
     else:
-        results = [_null_one(base, job) for job in jobs]
+        results = [_null_one(names, u, v, job) for job in jobs]
     null = [q for q, _ in results]
     short = sum(not complete for _, complete in results)
 

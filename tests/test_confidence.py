@@ -202,6 +202,30 @@ def test_same_seed_same_figures_and_direction_is_dropped():
     assert c.edges == g.number_of_edges()
 
 
+def test_tested_graph_is_the_simple_undirected_graph_of_the_ties():
+    # Self-loops, repeated ties, both directions of a tie and nodes without ties are
+    # dropped: the graph tested is networkx's simple Graph of the ties minus its
+    # self-loops and isolates, and the communities' modularity is networkx's on it.
+    rng = np.random.default_rng(3)
+    m = nx.MultiDiGraph()
+    m.add_nodes_from(range(45))  # 40 .. 44 stay without ties
+    pairs = rng.integers(0, 40, size=(300, 2))
+    m.add_edges_from(map(tuple, pairs.tolist()))  # with self-loops, repeats, reciprocals
+    m.add_edges_from([(7, 7), (7, 7), (3, 9), (9, 3), (3, 9)])
+    labels = {v: int(rng.integers(0, 4)) for v in m}
+    simple = nx.Graph(m.to_undirected())
+    simple.remove_edges_from(list(nx.selfloop_edges(simple)))
+    simple.remove_nodes_from(list(nx.isolates(simple)))
+    parts: dict[int, set] = {}
+    for v in simple:
+        parts.setdefault(labels[v], set()).add(v)
+    test = confidence.structure_test(m, labels, randomisations=2, seed=0)
+    assert (test.nodes, test.edges) == (simple.number_of_nodes(), simple.number_of_edges())
+    assert test.modularity_communities == pytest.approx(
+        nx.community.modularity(simple, parts.values())  # networkx's modularity
+    )
+
+
 def test_tiny_graph_is_not_tested():
     test = confidence.structure_test(nx.path_graph(3), {0: 0, 1: 0, 2: 0}, randomisations=5)
     assert test.clear is False and test.randomisations == 0
@@ -211,11 +235,12 @@ def test_structure_budget_rule():
     # Our own rule (common practice, measured in benchmarks/bench_confidence.py).
     assert confidence.structure_budget(10_000, 20)[:2] == (20, 10.0)
     assert confidence.structure_budget(20_000, 20)[:2] == (20, 3.0)
-    assert confidence.structure_budget(40_000, 20)[:2] == (10, 3.0)
-    assert confidence.structure_budget(100_000, 20)[:2] == (5, 3.0)
-    assert confidence.structure_budget(1_000_000, 20)[:2] == (3, 3.0)
-    assert confidence.structure_budget(100_000, 3)[:2] == (3, 3.0)
-    assert "reduced from 20" in confidence.structure_budget(100_000, 20)[2]
+    assert confidence.structure_budget(1_000_000, 20)[:2] == (20, 3.0)
+    assert confidence.structure_budget(1_250_000, 20)[:2] == (16, 3.0)
+    assert confidence.structure_budget(5_000_000, 20)[:2] == (10, 3.0)
+    assert confidence.structure_budget(5_000_000, 3)[:2] == (3, 3.0)
+    assert "reduced from 20" in confidence.structure_budget(5_000_000, 20)[2]
+    assert "reduced" not in confidence.structure_budget(1_000_000, 20)[2]
 
 
 # --------------------------------------------------------------------------------------
@@ -327,12 +352,13 @@ def test_stability_budget_rule():
 # --------------------------------------------------------------------------------------
 
 
-def test_structure_test_same_figures_in_two_processes():
+def test_structure_test_same_figures_in_two_threads():
     g = nx.ring_of_cliques(5, 5)
     labels = {v: v // 5 for v in g}
-    one = confidence.structure_test(g, labels, randomisations=4, seed=3, processes=1)
-    two = confidence.structure_test(g, labels, randomisations=4, seed=3, processes=2)
+    one = confidence.structure_test(g, labels, randomisations=4, seed=3, threads=1)
+    two = confidence.structure_test(g, labels, randomisations=4, seed=3, threads=2)
     assert one.null == two.null and one.modularity_best == two.modularity_best
+    assert "2 at a time" in two.budget and "at a time" not in one.budget
 
 
 def test_stability_same_figures_in_two_processes():

@@ -742,26 +742,49 @@ def _connected(csr: CSRGraph) -> np.ndarray:
     return np.asarray(degree > 0)
 
 
+def _group_labels(
+    view: str,
+    embedding: Any,
+    *,
+    idx: np.ndarray,
+    seeds: Mapping[str, int],
+    min_cluster_size: int,
+    reduce_to: int,
+    fit_limit: int | None,
+) -> np.ndarray:
+    """One view's group labels over ``idx``, grouped as the pipeline groups them.
+
+    Runs in the process that computed the view (:func:`roles.embed.embed_views_then`).
+    """
+    from .cluster import cluster
+
+    return cluster(
+        np.asarray(embedding.vectors)[idx],
+        min_cluster_size=min_cluster_size,
+        reduce_to=reduce_to,
+        seed=seeds[view],
+        fit_limit=fit_limit,
+    ).labels
+
+
 def _rerun(
     csr: CSRGraph, config: Config, idx: np.ndarray, processes: int | None = None
 ) -> dict[str, np.ndarray]:
     """Both views' group labels over ``idx``, made exactly as the pipeline makes them."""
-    from .cluster import cluster
-    from .embed import embed_views
+    from .embed import embed_views_then
     from .pipeline import stage_seeds
 
     seeds = stage_seeds(config.seed)
-    embeddings = embed_views(csr, config, processes=processes)
-    out = {}
-    for i, view in enumerate(_VIEWS):
-        vectors = np.asarray(embeddings[view].vectors)[idx]
-        out[view] = cluster(
-            vectors,
-            min_cluster_size=config.cluster.min_cluster_size,
-            reduce_to=config.cluster.reduce_to,
-            seed=seeds[2 + i],
-        ).labels
-    return out
+    then = functools.partial(
+        _group_labels,
+        idx=idx,
+        seeds={"local": seeds[2], "far": seeds[3]},
+        min_cluster_size=config.cluster.min_cluster_size,
+        reduce_to=config.cluster.reduce_to,
+        fit_limit=config.cluster.fit_limit or None,
+    )
+    done = embed_views_then(csr, config, then, processes=processes)
+    return {view: done[view][1] for view in _VIEWS}
 
 
 def _reruns(
@@ -834,8 +857,9 @@ def stability(
         The main run's configuration. Re-run ``k`` uses
         ``dataclasses.replace(config, seed=s_k)``, with ``s_k`` drawn from
         ``numpy.random.SeedSequence(seed)``, and is made exactly as the pipeline makes
-        its groups (:func:`roles.embed.embed_views`, then :func:`roles.cluster.cluster`
-        on the members with ties, seeded by :func:`roles.pipeline.stage_seeds`).
+        its groups (:func:`roles.embed.embed_views_then`, each view grouped by
+        :func:`roles.cluster.cluster` on the members with ties, with the run's
+        ``fit_limit``, seeded by :func:`roles.pipeline.stage_seeds`).
     runs : int, default 5
         Re-runs asked for; large networks get fewer (:func:`stability_budget`).
     view : {"local", "far"}
@@ -852,9 +876,9 @@ def stability(
         Re-runs made at once, in separate processes (each then embeds its two views one
         after the other). By default 2 when there are two or more re-runs of at least
         500,000 walk steps each, on a machine with two or more cores; otherwise the
-        re-runs run one after the other and each embeds its two views side by side
-        when its walks are large enough (:func:`roles.embed.embed_views`). The figures
-        do not depend on it.
+        re-runs run one after the other and each embeds and groups its two views side
+        by side when its walks are large enough (:func:`roles.embed.embed_views_then`).
+        The figures do not depend on it.
 
     Returns
     -------

@@ -138,12 +138,13 @@ def _versions() -> dict[str, str]:
 
 
 #: Above these sizes the confidence checks are cut back unless [confidence]
-#: scale_down = false: one re-run costs as much as the whole embedding, and Louvain on
-#: one randomised copy takes about 50 CPU seconds at 100,000 ties
-#: (benchmarks/bench_confidence.py).
+#: scale_down = false: one re-run costs as much as the whole embedding (about 16 s at
+#: 10,000 members, 24 s at 20,000); the structure test with all 20 randomisations takes
+#: 19 s wall at 1,000,000 ties on two threads (compiled swaps and Louvain,
+#: benchmarks/bench_confidence.py).
 RERUNS_FULL_NODES = 5_000
 RERUNS_ONE_NODES = 10_000
-STRUCTURE_MAX_TIES = 50_000
+STRUCTURE_MAX_TIES = 1_000_000
 
 
 def confidence_budget(
@@ -242,6 +243,12 @@ def _group_view(
     neighbours = nearest_neighbours(x, k) if k else None
     seconds["neighbours"] = round(time.perf_counter() - start, 3)
     return _ViewWork(grouping, neighbours, seconds)
+
+
+def _neighbour_lists(work: Mapping[str, _ViewWork]) -> tuple[np.ndarray, np.ndarray]:
+    local, far = work["local"].neighbours, work["far"].neighbours
+    assert local is not None and far is not None  # searched whenever k > 0
+    return local, far
 
 
 def _trial_steps(csr: Any, config: Config, seed: int) -> float:
@@ -411,7 +418,7 @@ def run(
                 groupings["local"].labels,
                 groupings["far"].labels,
                 k=k,
-                neighbours=(work["local"].neighbours, work["far"].neighbours),
+                neighbours=_neighbour_lists(work),
             )
             overlap[idx] = comparison.overlap
 

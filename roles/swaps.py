@@ -22,7 +22,7 @@ References
    generation of random graphs with prescribed degree sequences", arXiv:cond-mat/0312028,
    2003.
 .. [2] R. Taylor, "Constrained switchings in graphs", Combinatorial Mathematics VIII,
-   Lecture Notes in Mathematics 884, 314-336, Springer, 1981. doi:10.1007/BFb0091828
+   Springer LNM vol. 884, 314-336, 1981. doi:10.1007/BFb0091828
 .. [3] D. E. Knuth, The Art of Computer Programming, Vol. 3: Sorting and Searching, 2nd
    ed., Addison-Wesley, 1998.
 .. [4] G. L. Steele, D. Lea and C. H. Flood, "Fast splittable pseudorandom number

@@ -40,41 +40,12 @@ from numba import njit
 
 __all__ = ["Swapped", "double_edge_swap", "edges_to_csr_arrays"]
 
-_GAMMA = np.uint64(0x9E3779B97F4A7C15)
-_M1 = np.uint64(0xBF58476D1CE4E5B9)
-_M2 = np.uint64(0x94D049BB133111EB)
-_S30 = np.uint64(30)
-_S27 = np.uint64(27)
-_S31 = np.uint64(31)
-_S32 = np.uint64(32)
-_LOW32 = np.uint64(0xFFFFFFFF)
-_TWO32 = np.uint64(1 << 32)
+# The walk kernel's generator (SplitMix64 [4], Lemire's bounded integers [5]); the
+# lowest of its spare bits picks a tie's orientation.
+from .walks.kernel import _below, _mix  # noqa: E402
+
+_ONE = np.uint64(1)
 _EMPTY = -1
-
-
-@njit(cache=True, nogil=True)
-def _mix(z):  # pragma: no cover - compiled
-    # SplitMix64 finaliser [4].
-    z = (z ^ (z >> _S30)) * _M1
-    z = (z ^ (z >> _S27)) * _M2
-    return z ^ (z >> _S31)
-
-
-@njit(cache=True, nogil=True)
-def _below(state, d):  # pragma: no cover - compiled
-    """Uniform integer in [0, d), d < 2**32 (Lemire's method [5]), and one spare bit."""
-    state = state + _GAMMA
-    z = _mix(state)
-    m = (z >> _S32) * d
-    low = m & _LOW32
-    if low < d:
-        threshold = (_TWO32 - d) % d
-        while low < threshold:
-            state = state + _GAMMA
-            z = _mix(state)
-            m = (z >> _S32) * d
-            low = m & _LOW32
-    return state, np.int64(m >> _S32), np.int64(z & np.uint64(1))
 
 
 @njit(cache=True, nogil=True)
@@ -135,10 +106,10 @@ def _swap_kernel(u, v, n, nswap, max_tries, seed):  # pragma: no cover - compile
     swaps = 0
     tries = 0
     while swaps < nswap and tries < max_tries:
-        state, i, flip = _below(state, dm)
-        a, b = (v[i], u[i]) if flip else (u[i], v[i])
-        state, j, flip = _below(state, dm)
-        c, d = (v[j], u[j]) if flip else (u[j], v[j])
+        state, i, bits = _below(state, dm)
+        a, b = (v[i], u[i]) if bits & _ONE else (u[i], v[i])
+        state, j, bits = _below(state, dm)
+        c, d = (v[j], u[j]) if bits & _ONE else (u[j], v[j])
         # networkx skips these picks without counting a try: a-c or b-d would be a
         # self-loop. At most half of all picks are such (sum of (degree / 2m)^2 <= 1/2
         # for each end), so the loop ends.

@@ -9,7 +9,7 @@ spread of a sampled fit shows too.
 
 Run: ``.venv/bin/python benchmarks/bench_cluster.py [--sizes 50000 100000]
 [--limits 0 20000 30000] [--repeats 2] [--windows 0 5] [--min-sizes 0 10]
-[--json FILE]`` (limit ``0``:
+[--dims 16 8] [--json FILE]`` (limit ``0``:
 every row; window ``0``: the one ``roles.budget.walk_budget`` picks).
 """
 
@@ -74,6 +74,9 @@ def main() -> None:
     ap.add_argument(
         "--min-sizes", type=int, nargs="+", default=[0], help="HDBSCAN smallest group (0: default)"
     )
+    ap.add_argument(
+        "--dims", type=int, nargs="+", default=[16], help="dimensions kept by PCA before HDBSCAN"
+    )
     ap.add_argument("--json", metavar="FILE")
     args = ap.parse_args()
 
@@ -83,19 +86,26 @@ def main() -> None:
 
     rows: list[dict[str, Any]] = []
     print(
-        "| nodes | walks | view | fit on | smallest group | sample seed | wall s | groups "
+        "| nodes | walks | view | dims | fit on | smallest group | sample seed | wall s | groups "
         "| noise | NMI |"
     )
-    print("|---|---|---|---|---|---|---|---|---|---|")
+    print("|---|---|---|---|---|---|---|---|---|---|---|")
     for n, window in ((n, w) for n in args.sizes for w in args.windows):
         vectors, truth, walks = _vectors(n, args.seed, Path(args.cache), window)
         for view in ("local", "far"):
-            for limit, size in ((lim, m) for lim in args.limits for m in args.min_sizes):
+            settings = [
+                (d, lim, m) for d in args.dims for lim in args.limits for m in args.min_sizes
+            ]
+            for dims, limit, size in settings:
                 repeats = 1 if limit == 0 or limit >= n else args.repeats
                 for r in range(repeats):
                     start = time.perf_counter()
                     g = cluster(
-                        vectors[view], min_cluster_size=size, seed=r, fit_limit=limit or None
+                        vectors[view],
+                        min_cluster_size=size,
+                        reduce_to=dims,
+                        seed=r,
+                        fit_limit=limit or None,
                     )
                     wall = time.perf_counter() - start
                     nmi = float(normalized_mutual_info_score(truth, g.labels))
@@ -103,6 +113,7 @@ def main() -> None:
                         "nodes": n,
                         "walks": walks,
                         "view": view,
+                        "dims": g.dimensions,
                         "fit_limit": limit or None,
                         "min_cluster_size": g.min_cluster_size,
                         "sample_seed": r if limit else None,
@@ -113,7 +124,8 @@ def main() -> None:
                     }
                     rows.append(row)
                     print(
-                        f"| {n:,} | {walks} | {view} | {f'{limit:,}' if limit else 'all'} | "
+                        f"| {n:,} | {walks} | {view} | {g.dimensions} | "
+                        f"{f'{limit:,}' if limit else 'all'} | "
                         f"{g.min_cluster_size} | {r if limit else '-'} | {wall:.1f} | "
                         f"{g.n_groups} | {g.noise_share:.2f} | {nmi:.3f} |",
                         flush=True,

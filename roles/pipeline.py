@@ -191,9 +191,10 @@ def _sampled_fit_note(groupings: Mapping[str, Grouping], n_rows: int) -> str | N
     return (
         f"The groups were found among {max(fitted):,} randomly chosen members of the "
         f"{n_rows:,} with ties; every other member joined the group of its nearest chosen "
-        "members. On test networks of 50,000 members with planted communities this found "
-        "the communities as well as using everyone, in a quarter of the time. To use "
-        "everyone, set fit_limit = 0 in the [cluster] section of a configuration file."
+        "members. On test networks of 20,000 and 50,000 members with planted communities "
+        "this found the communities as well as using everyone, in a quarter to a half of "
+        "the time. To use everyone, set fit_limit = 0 in the [cluster] section of a "
+        "configuration file."
     )
 
 

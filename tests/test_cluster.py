@@ -65,6 +65,22 @@ def test_fit_limit_at_or_above_n_changes_nothing():
     assert full.fitted == same.fitted == 400
 
 
+def test_fitted_rows_follows_its_rule():
+    # Rule of roles.cluster.fitted_rows: min(limit, max(12000, ceil(0.6 n))), or all rows
+    # when that is not fewer than n; figures worked by hand from the rule.
+    from roles.cluster import fitted_rows
+
+    assert fitted_rows(20_000, None) == 20_000
+    assert fitted_rows(12_000, 20_000) == 12_000  # floor reaches n: full fit
+    assert fitted_rows(12_001, 20_000) == 12_000
+    assert fitted_rows(20_000, 20_000) == 12_000  # 0.6 * 20,000
+    assert fitted_rows(25_001, 20_000) == 15_001  # ceil(15,000.6)
+    assert fitted_rows(33_334, 20_000) == 20_000  # ceil(20,000.4) capped by the limit
+    assert fitted_rows(100_000, 20_000) == 20_000
+    assert fitted_rows(3_000, 1_000) == 1_000  # a limit below the floor is kept
+    assert fitted_rows(500, 250) == 250
+
+
 def test_sampled_fit_recovers_separated_blobs():
     # Truth: the generating blob (scikit-learn make_blobs); the fit sees a third of them.
     x, truth = make_blobs(n_samples=3000, centers=5, n_features=32, cluster_std=0.8, random_state=6)

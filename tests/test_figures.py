@@ -219,6 +219,24 @@ def test_dense_point_layers_become_one_image_and_the_rest_stays_vector():
     assert 3 <= len(list(root.iter(f"{SVG}use"))) < 60
 
 
+def test_mid_sized_layers_of_a_dense_plot_become_images_too():
+    # 1,300 members, 300 bridge-like, 3 hubs: more than RASTER_ABOVE points in all, so
+    # every layer above RASTER_LAYER_MIN points is an image; only the hubs stay vector.
+    rng = np.random.default_rng(5)
+    big, mid = F.RASTER_ABOVE - 200, F.RASTER_LAYER_MIN * 3
+    roles = ["member"] * big + ["bridge-like"] * mid + ["hub-like"] * 3
+    z = np.r_[rng.normal(size=big + mid), [3.0, 3.5, 4.0]]
+    p = rng.uniform(size=big + mid + 3)
+    root = ET.fromstring(F.role_map(z, p, roles).svg)
+    assert len(list(root.iter(f"{SVG}image"))) >= 1
+    assert 3 <= len(list(root.iter(f"{SVG}use"))) < 60  # not the 300 bridge-like markers
+    # Below RASTER_ABOVE points in all, every layer stays vector.
+    small = F.role_map(z[: mid + 3], p[: mid + 3], roles[big : big + mid] + ["hub-like"] * 3)
+    small_root = ET.fromstring(small.svg)
+    assert not list(small_root.iter(f"{SVG}image"))
+    assert len(list(small_root.iter(f"{SVG}use"))) >= mid
+
+
 def test_right_to_left_names_are_stored_in_display_order():
     # Unicode Bidirectional Algorithm (UAX #9), left-to-right line: a right-to-left run
     # is shown reversed, a number inside it keeps its own order.

@@ -113,6 +113,12 @@ _WIDTH = 6.3  # inches: fits the text width of A4 and US Letter with 18 mm margi
 #: and axes stay vector graphics.
 RASTER_ABOVE = 1500
 
+#: In a plot with more than ``RASTER_ABOVE`` points, a layer of more than this many
+#: points is drawn as an image too, so only the rare labels stay vector shapes. At
+#: 20,000 members the role map's 1,844 bridge-like and connector-hub points took the
+#: PDF from 3.2-3.7 s to 5.1 s (WeasyPrint 70, benchmarks/RESULTS.md).
+RASTER_LAYER_MIN = 100
+
 
 @dataclass(frozen=True)
 class Figure:
@@ -522,13 +528,14 @@ def role_map(
                 clip_on=False,
             )
         # The common label first, so the rare ones are drawn on top of it.
+        dense = int(ok.sum()) > RASTER_ABOVE
         for kind in sorted(kinds, key=lambda x: -int(np.sum(r[ok] == x))):
             sel = ok & (r == kind)
             marker, colour, size = styles[kind]
             ax.scatter(
                 p[sel],
                 z[sel],
-                rasterized=int(sel.sum()) > RASTER_ABOVE,
+                rasterized=dense and int(sel.sum()) > RASTER_LAYER_MIN,
                 s=size,
                 marker=marker,
                 facecolor=colour,

@@ -8,9 +8,11 @@ and NMI (scikit-learn) against the planted communities. The sample seed varies, 
 spread of a sampled fit shows too.
 
 Run: ``.venv/bin/python benchmarks/bench_cluster.py [--sizes 50000 100000]
-[--limits 0 20000 30000] [--repeats 2] [--windows 0 5] [--min-sizes 0 10]
-[--dims 16 8] [--json FILE]`` (limit ``0``:
-every row; window ``0``: the one ``roles.budget.walk_budget`` picks).
+[--limits 0 20000 30000] [--repeats 2] [--windows 0 5] [--negatives 5 3]
+[--min-sizes 0 10] [--dims 16 8] [--json FILE]`` (limit ``0``: every row; window ``0``:
+the one ``roles.budget.walk_budget`` picks; ``--negatives``: skip-gram negative samples,
+the default's 5 keeps the old cache name). Each new set of vectors prints the wall time
+of both views (walks and skip-gram, two processes) when it is computed.
 """
 
 from __future__ import annotations
@@ -30,9 +32,10 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 
 
 def _vectors(
-    n: int, seed: int, cache: Path, window: int | None
+    n: int, seed: int, cache: Path, window: int | None, negative: int = 5
 ) -> tuple[dict[str, np.ndarray], np.ndarray, str]:
-    path = cache / f"roles-bench-cluster-{n}-{seed}-w{window or 'budget'}.npz"
+    neg = "" if negative == 5 else f"-neg{negative}"
+    path = cache / f"roles-bench-cluster-{n}-{seed}-w{window or 'budget'}{neg}.npz"
     if path.exists():
         data = np.load(path)
         return {"local": data["local"], "far": data["far"]}, data["truth"], str(data["walks"])
@@ -47,15 +50,20 @@ def _vectors(
     graph, truth = make_graph("planted", n, seed)
     graph = nx.relabel_nodes(graph, {v: str(v) for v in graph}, copy=True)
     config = Config()
+    config = dataclasses.replace(
+        config, embedding=dataclasses.replace(config.embedding, negative=negative)
+    )
     if window:  # kept by the budget, as a window the user set
         embedding = dataclasses.replace(config.embedding, window=window)
         config = dataclasses.replace(config, embedding=embedding, window_given=True)
     config, _ = walk_budget(graph.number_of_nodes(), graph.number_of_edges(), config)
+    start = time.perf_counter()
     embeddings = embed_views(to_csr(graph), config)
     walks = (
         f"{config.walks.walks_per_node}x{config.walks.walk_length}, "
-        f"window {config.embedding.window}"
+        f"window {config.embedding.window}" + (f", negative {negative}" if neg else "")
     )
+    print(f"vectors {n:,} nodes, {walks}: {time.perf_counter() - start:.1f} s", flush=True)
     vectors = {v: np.asarray(e.vectors) for v, e in embeddings.items()}
     np.savez(path, truth=np.asarray(truth), walks=walks, **vectors)
     return vectors, np.asarray(truth), walks
@@ -71,6 +79,7 @@ def main() -> None:
     ap.add_argument(
         "--windows", type=int, nargs="+", default=[0], help="skip-gram windows (0: the budget's)"
     )
+    ap.add_argument("--negatives", type=int, nargs="+", default=[5], help="negative samples")
     ap.add_argument(
         "--min-sizes", type=int, nargs="+", default=[0], help="HDBSCAN smallest group (0: default)"
     )
@@ -90,8 +99,9 @@ def main() -> None:
         "| noise | NMI |"
     )
     print("|---|---|---|---|---|---|---|---|---|---|---|")
-    for n, window in ((n, w) for n in args.sizes for w in args.windows):
-        vectors, truth, walks = _vectors(n, args.seed, Path(args.cache), window)
+    cases = ((n, w, k) for n in args.sizes for w in args.windows for k in args.negatives)
+    for n, window, negative in cases:
+        vectors, truth, walks = _vectors(n, args.seed, Path(args.cache), window, negative)
         for view in ("local", "far"):
             settings = [
                 (d, lim, m) for d in args.dims for lim in args.limits for m in args.min_sizes

@@ -5,9 +5,10 @@ LFR benchmark graphs (Lancichinetti, Fortunato & Radicchi 2008; networkx's gener
 parameters of ``bench_views.py``: n=1000, tau1 2.5, tau2 1.5, average degree 10, degree
 at most 50, communities of 20 to 100) at mixing 0.1 and 0.3, several seeds. One setting
 at a time is moved away from the configured defaults (walks per node, walk length,
-window, dimensions, epochs, and the clustering's PCA dimensions); every other setting
-stays at its default. Each row embeds both views, clusters them as the pipeline does
-and scores each view's groups against the planted communities with scikit-learn's NMI.
+window, dimensions, epochs, negative samples, and the clustering's PCA dimensions);
+every other setting stays at its default. Each row embeds both views, clusters them as
+the pipeline does and scores each view's groups against the planted communities with
+scikit-learn's NMI.
 
 Cost is the skip-gram work: walk tokens per view times epochs (the walks themselves cost
 the same number of steps), and the CPU seconds the row took (walks, skip-gram and
@@ -25,7 +26,7 @@ on new graphs against the defaults, and the first within 0.01 of the defaults th
 recommended. Local and far are compared under it on those new graphs.
 
 Run: ``.venv/bin/python benchmarks/bench_defaults.py [--seeds 3] [--final-seeds 8]
-[--only walks_per_node walk_length] [--json FILE]``.
+[--only walks_per_node walk_length] [--no-joint] [--json FILE]``.
 """
 
 from __future__ import annotations
@@ -63,6 +64,7 @@ GRID: dict[str, list[int]] = {
     "window": [2, 3, 5, 8],
     "dimensions": [16, 32, 64, 128],
     "epochs": [1, 2, 3],
+    "negative": [2, 3, 5, 8],
     "reduce_to": [4, 8, 16, 32],
 }
 _SECTION = {
@@ -71,6 +73,7 @@ _SECTION = {
     "window": "embedding",
     "dimensions": "embedding",
     "epochs": "embedding",
+    "negative": "embedding",
     "reduce_to": "cluster",
 }
 
@@ -201,6 +204,7 @@ def main() -> None:
         help="settings to vary one at a time (none: go straight to the joint search)",
     )
     ap.add_argument("--checks", type=int, default=4, help="candidates checked on new graphs")
+    ap.add_argument("--no-joint", action="store_true", help="stop after the one-at-a-time tables")
     ap.add_argument("--json", metavar="FILE", help="also write the figures to FILE")
     args = ap.parse_args()
     view = "community"
@@ -229,7 +233,7 @@ def main() -> None:
         # Cheaper first: walk settings and epochs by tokens, the others by CPU time
         # (dimensions and window do not change the token count).
         rows.sort(key=lambda r: (r["tokens_per_view"], r["cpu_s_per_graph"], r["value"]))
-        if name in ("dimensions", "window", "reduce_to"):
+        if name in ("dimensions", "window", "negative", "reduce_to"):
             rows.sort(key=lambda r: r["value"])
         tables[name] = rows
         chosen[name], best = choose(rows, view)
@@ -239,6 +243,11 @@ def main() -> None:
             f"{name} (default {default_value}); best {view} mean {best:.3f}, "
             f"cheapest within {TOLERANCE}: {chosen[name]}",
         )
+    if args.no_joint:
+        if args.json:
+            out = {"n": args.n, "mixing": MIXING, "seeds": args.seeds, "tables": tables}
+            Path(args.json).write_text(json.dumps(out, indent=1) + "\n", encoding="utf-8")
+        return
     # One-at-a-time choices interact (fewer walks, shorter walks and a narrower window
     # each cut the skip-gram pairs), so the walk and window settings are searched
     # jointly, then the cheapest candidates are checked on new graphs.

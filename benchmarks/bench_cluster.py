@@ -10,9 +10,10 @@ spread of a sampled fit shows too.
 Run: ``.venv/bin/python benchmarks/bench_cluster.py [--sizes 50000 100000]
 [--limits 0 20000 30000] [--repeats 2] [--windows 0 5] [--negatives 5 3]
 [--min-sizes 0 10] [--dims 16 8] [--json FILE]`` (limit ``0``: every row; window ``0``:
-the one ``roles.budget.walk_budget`` picks; ``--negatives``: skip-gram negative samples,
-the default's 5 keeps the old cache name). Each new set of vectors prints the wall time
-of both views (walks and skip-gram, two processes) when it is computed.
+the one ``roles.budget.walk_budget`` picks; ``--negatives``: skip-gram negative samples).
+Cached vectors are named after the graph, window, negatives and the default vector size.
+Each new set of vectors prints the wall time of both views (walks and skip-gram, two
+processes) when it is computed.
 """
 
 from __future__ import annotations
@@ -34,8 +35,11 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 def _vectors(
     n: int, seed: int, cache: Path, window: int | None, negative: int = 5
 ) -> tuple[dict[str, np.ndarray], np.ndarray, str]:
+    from roles.config import EmbeddingConfig
+
     neg = "" if negative == 5 else f"-neg{negative}"
-    path = cache / f"roles-bench-cluster-{n}-{seed}-w{window or 'budget'}{neg}.npz"
+    dims = EmbeddingConfig().dimensions  # in the name: vectors of older defaults differ
+    path = cache / f"roles-bench-cluster-{n}-{seed}-w{window or 'budget'}{neg}-d{dims}.npz"
     if path.exists():
         data = np.load(path)
         return {"local": data["local"], "far": data["far"]}, data["truth"], str(data["walks"])

@@ -9,8 +9,9 @@ script prints the members in the majority faction of their community (out of 34;
 ``tests/test_pipeline.py`` asks for 85 %, i.e. 29) and whether members 0 and 33, the two
 faction leaders, lead the hub list.
 
-Run: ``.venv/bin/python benchmarks/bench_small.py [--settings 10/40/5 10/40/2]
-[--seeds 0 1 2]``.
+Run: ``.venv/bin/python benchmarks/bench_small.py [--settings 10/40/5 10/40/2 10/40/5/16]
+[--seeds 0 1 2]`` (an optional fourth figure sets the vector dimensions; without it,
+the default's).
 """
 
 from __future__ import annotations
@@ -39,16 +40,20 @@ def main() -> None:
     ap.add_argument("--seeds", type=int, nargs="+", default=[DEFAULT_SEED, *range(8)])
     args = ap.parse_args()
     graph = nx.karate_club_graph()
-    print("| walks/length/window | faction agreement per seed (of 34) | hubs 0 and 33 first |")
+    print(
+        "| walks/length/window[/dimensions] | faction agreement per seed (of 34) "
+        "| hubs 0 and 33 first |"
+    )
     print("|---|---|---|")
     for setting in args.settings:
-        walks, length, window = (int(x) for x in setting.split("/"))
+        walks, length, window, *dims = (int(x) for x in setting.split("/"))
+        vector = {"dimensions": dims[0]} if dims else {}
         agree, hubs = [], 0
         for seed in args.seeds:
             config = Config(
                 seed=seed,
                 walks=WalkConfig(walks, length),
-                embedding=EmbeddingConfig(window=window),
+                embedding=EmbeddingConfig(window=window, **vector),
                 confidence=ConfidenceConfig(runs=0, randomisations=0),
             )
             config = dataclasses.replace(config, walks_given=True, window_given=True)

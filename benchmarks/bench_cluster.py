@@ -9,11 +9,12 @@ spread of a sampled fit shows too.
 
 Run: ``.venv/bin/python benchmarks/bench_cluster.py [--sizes 50000 100000]
 [--limits 0 20000 30000] [--repeats 2] [--windows 0 5] [--negatives 5 3]
-[--min-sizes 0 10] [--dims 16 8] [--json FILE]`` (limit ``0``: every row; window ``0``:
-the one ``roles.budget.walk_budget`` picks; ``--negatives``: skip-gram negative samples).
-Cached vectors are named after the graph, window, negatives and the default vector size.
-Each new set of vectors prints the wall time of both views (walks and skip-gram, two
-processes) when it is computed.
+[--vector-dims 64 16] [--min-sizes 0 10] [--dims 16 8] [--json FILE]``. Limit ``0``:
+every row; window ``0``: the one ``roles.budget.walk_budget`` picks; ``--negatives``:
+skip-gram negative samples; ``--vector-dims``: skip-gram vector size, ``0`` the
+default's; ``--dims``: dimensions kept by PCA. Cached vectors are named after the
+graph, window, negatives and vector size. Each new set of vectors prints the wall time
+of both views (walks and skip-gram, two processes) when it is computed.
 """
 
 from __future__ import annotations
@@ -33,12 +34,17 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 
 
 def _vectors(
-    n: int, seed: int, cache: Path, window: int | None, negative: int = 5
+    n: int,
+    seed: int,
+    cache: Path,
+    window: int | None,
+    negative: int = 5,
+    dimensions: int | None = None,
 ) -> tuple[dict[str, np.ndarray], np.ndarray, str]:
     from roles.config import EmbeddingConfig
 
     neg = "" if negative == 5 else f"-neg{negative}"
-    dims = EmbeddingConfig().dimensions  # in the name: vectors of older defaults differ
+    dims = dimensions or EmbeddingConfig().dimensions
     path = cache / f"roles-bench-cluster-{n}-{seed}-w{window or 'budget'}{neg}-d{dims}.npz"
     if path.exists():
         data = np.load(path)
@@ -55,7 +61,8 @@ def _vectors(
     graph = nx.relabel_nodes(graph, {v: str(v) for v in graph}, copy=True)
     config = Config()
     config = dataclasses.replace(
-        config, embedding=dataclasses.replace(config.embedding, negative=negative)
+        config,
+        embedding=dataclasses.replace(config.embedding, negative=negative, dimensions=dims),
     )
     if window:  # kept by the budget, as a window the user set
         embedding = dataclasses.replace(config.embedding, window=window)
@@ -65,7 +72,8 @@ def _vectors(
     embeddings = embed_views(to_csr(graph), config)
     walks = (
         f"{config.walks.walks_per_node}x{config.walks.walk_length}, "
-        f"window {config.embedding.window}" + (f", negative {negative}" if neg else "")
+        f"window {config.embedding.window}, {dims} dimensions"
+        + (f", negative {negative}" if neg else "")
     )
     print(f"vectors {n:,} nodes, {walks}: {time.perf_counter() - start:.1f} s", flush=True)
     vectors = {v: np.asarray(e.vectors) for v, e in embeddings.items()}
@@ -85,6 +93,9 @@ def main() -> None:
     )
     ap.add_argument("--negatives", type=int, nargs="+", default=[5], help="negative samples")
     ap.add_argument(
+        "--vector-dims", type=int, nargs="+", default=[0], help="skip-gram vector size (0: default)"
+    )
+    ap.add_argument(
         "--min-sizes", type=int, nargs="+", default=[0], help="HDBSCAN smallest group (0: default)"
     )
     ap.add_argument(
@@ -103,9 +114,17 @@ def main() -> None:
         "| noise | NMI |"
     )
     print("|---|---|---|---|---|---|---|---|---|---|---|")
-    cases = ((n, w, k) for n in args.sizes for w in args.windows for k in args.negatives)
-    for n, window, negative in cases:
-        vectors, truth, walks = _vectors(n, args.seed, Path(args.cache), window, negative)
+    cases = (
+        (n, w, k, v)
+        for n in args.sizes
+        for w in args.windows
+        for k in args.negatives
+        for v in args.vector_dims
+    )
+    for n, window, negative, vdims in cases:
+        vectors, truth, walks = _vectors(
+            n, args.seed, Path(args.cache), window, negative, vdims or None
+        )
         for view in ("local", "far"):
             settings = [
                 (d, lim, m) for d in args.dims for lim in args.limits for m in args.min_sizes

@@ -132,7 +132,10 @@ def planted_partition(
         sizes.append(int(_power_law(rng, 1, size_exponent, min_community, max_community)[0]))
     sizes[-1] -= sum(sizes) - n
     if sizes[-1] < min_community and len(sizes) > 1:
-        sizes[-2] += sizes.pop()
+        # Fold a short last community into the one before (pop first: in
+        # ``sizes[-2] += sizes.pop()`` the index is taken before the pop).
+        last = sizes.pop()
+        sizes[-1] += last
     size_of = np.asarray(sizes)
     # Wanted degrees: power law with its smallest value set so the mean is avg_degree,
     # capped at the largest community as LFR's max_degree <= max_community.

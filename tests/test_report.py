@@ -424,3 +424,34 @@ def test_summary_says_how_many_communities_come_back(report, karate_result):
     method = _flat("\n".join(pages))
     assert "Stabilityacrossseeds" in method and "Structuretest" in method
     assert "Hennig,C.(2007)" in method
+
+
+def test_no_rerun_verdicts_when_no_reruns_were_made(karate_result):
+    # Above the confidence budget's size limits roles.run makes no re-runs (every
+    # community's verdict is "not re-run"); the report must not count them as failing
+    # to come back, nor describe re-runs "0 times".
+    import dataclasses
+
+    from roles.config import ConfidenceConfig, Config
+
+    g, attrs = _karate()
+    result = run(g, config=Config(confidence=ConfidenceConfig(runs=0)), attributes=attrs)
+    per = result.summary["stability"]["communities"]
+    assert per and {c["verdict"] for c in per.values()} == {"not re-run"}
+
+    def html_of(res):
+        ctx = build_context(res, title="t", kind="general", paper="a4", min_group_size=5, made=MADE)
+        return render_html(ctx)
+
+    def words(html):
+        return _flat(re.sub(r"<[^>]+>", " ", html))
+
+    chosen = html_of(result)  # runs = 0 set by the user: nothing to say
+    assert "<th>Comes back</th>" not in chosen
+    assert "comeback" not in words(chosen) and "re-run0times" not in words(chosen)
+    note = "To keep the run affordable: 0 of 3 re-runs with other seeds."
+    skipped = html_of(
+        dataclasses.replace(result, summary={**result.summary, "confidence_budget": note})
+    )
+    assert "re-runwithotherseedswasnottested" in words(skipped)
+    assert "re-run0times" not in words(skipped)

@@ -217,7 +217,11 @@ def _communities(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
         "rest": rest_row,
         "count": len(order),
         "map": figure,
-        "has_stability": bool(per),
+        # Re-runs actually made: beyond the confidence budget's size limits there are
+        # none, and every community's verdict is "not re-run".
+        "has_stability": bool(per) and int(stab.get("runs") or 0) > 0,
+        "reruns_skipped": not int(stab.get("runs") or 0)
+        and bool(result.summary.get("confidence_budget")),
         "stable": sum(1 for x in per.values() if x.get("verdict") == "stable"),
         "unstable": [int(k) for k in stab.get("unstable_communities", [])],
         "median_confidence": _fmt((stab.get("confidence") or {}).get("median")),

@@ -39,9 +39,10 @@ def choose_community_view(modularity: Mapping[str, float]) -> str:
     """The view whose groups have the higher modularity on this network.
 
     Neither view wins everywhere: on LFR graphs the local view was ahead by about 0.01
-    NMI and on Zachary's karate club the far view often leaves most members as noise
-    (benchmarks/bench_views.py). Modularity (Newman 2006) measured on the network
-    itself decides per run; a view that found no groups never wins.
+    NMI and on Zachary's karate club the far view finds no groups at all with the
+    default seed and seeds 0-7 (benchmarks/bench_views.py; 2026-12-04). Modularity
+    (Newman 2006) measured on the network itself decides per run; a view that found no
+    groups never wins.
     """
     scores = {v: (m if np.isfinite(m) else -np.inf) for v, m in modularity.items()}
     best = max(scores.values())

@@ -742,49 +742,15 @@ def _connected(csr: CSRGraph) -> np.ndarray:
     return np.asarray(degree > 0)
 
 
-def _group_labels(
-    view: str,
-    embedding: Any,
-    *,
-    idx: np.ndarray,
-    seeds: Mapping[str, int],
-    min_cluster_size: int,
-    reduce_to: int,
-    fit_limit: int | None,
-) -> np.ndarray:
-    """One view's group labels over ``idx``, grouped as the pipeline groups them.
-
-    Runs in the process that computed the view (:func:`roles.embed.embed_views_then`).
-    """
-    from .cluster import cluster
-
-    return cluster(
-        np.asarray(embedding.vectors)[idx],
-        min_cluster_size=min_cluster_size,
-        reduce_to=reduce_to,
-        seed=seeds[view],
-        fit_limit=fit_limit,
-    ).labels
-
-
 def _rerun(
     csr: CSRGraph, config: Config, idx: np.ndarray, processes: int | None = None
 ) -> dict[str, np.ndarray]:
     """Both views' group labels over ``idx``, made exactly as the pipeline makes them."""
     from .embed import embed_views_then
-    from .pipeline import stage_seeds
+    from .pipeline import view_grouper
 
-    seeds = stage_seeds(config.seed)
-    then = functools.partial(
-        _group_labels,
-        idx=idx,
-        seeds={"local": seeds[2], "far": seeds[3]},
-        min_cluster_size=config.cluster.min_cluster_size,
-        reduce_to=config.cluster.reduce_to,
-        fit_limit=config.cluster.fit_limit or None,
-    )
-    done = embed_views_then(csr, config, then, processes=processes)
-    return {view: done[view][1] for view in _VIEWS}
+    done = embed_views_then(csr, config, view_grouper(config, idx, 0), processes=processes)
+    return {view: done[view][1].grouping.labels for view in _VIEWS}
 
 
 def _reruns(

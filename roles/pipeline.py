@@ -247,6 +247,26 @@ def _group_view(
     return _ViewWork(grouping, neighbours, seconds)
 
 
+def view_grouper(config: Config, idx: np.ndarray, k: int) -> Callable[[str, Any], _ViewWork]:
+    """The work each view's process does after its embedding, as :func:`run` does it:
+    group the members ``idx`` with ``config.cluster`` and the stage seeds of
+    ``config.seed``, then (when ``k`` > 0) find each member's ``k`` nearest neighbours.
+
+    The confidence re-runs (:mod:`roles.confidence`) group with it too, so a re-run
+    differs from the run only in its seed.
+    """
+    seeds = stage_seeds(config.seed)
+    return functools.partial(
+        _group_view,
+        idx=idx,
+        seeds={"local": seeds[2], "far": seeds[3]},
+        min_cluster_size=config.cluster.min_cluster_size,
+        reduce_to=config.cluster.reduce_to,
+        fit_limit=config.cluster.fit_limit or None,
+        k=k,
+    )
+
+
 def _neighbour_lists(work: Mapping[str, _ViewWork]) -> tuple[np.ndarray, np.ndarray]:
     local, far = work["local"].neighbours, work["far"].neighbours
     assert local is not None and far is not None  # searched whenever k > 0
@@ -351,15 +371,7 @@ def run(
 
     idx = np.flatnonzero(connected)
     k = neighbour_count(len(idx)) if len(idx) >= 3 else 0
-    group_view = functools.partial(
-        _group_view,
-        idx=idx,
-        seeds={"local": seeds[2], "far": seeds[3]},
-        min_cluster_size=config.cluster.min_cluster_size,
-        reduce_to=config.cluster.reduce_to,
-        fit_limit=config.cluster.fit_limit or None,
-        k=k,
-    )
+    group_view = view_grouper(config, idx, k)
     with timer.stage("walks, embedding and clustering"):
         walk_csr = csr
         walk_basis = "ties followed in their direction" if csr.directed else "ties"

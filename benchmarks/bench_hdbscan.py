@@ -10,7 +10,7 @@ against the first algorithm's, and NMI against the planted communities over the 
 not left as noise and over all rows (noise as one label).
 
 Run: ``.venv/bin/python benchmarks/bench_hdbscan.py [--nodes 20000] [--rows 1000 12000
-20000] [--algorithms boruvka_kdtree prims_balltree] [--cache /tmp]``.
+20000] [--algorithms boruvka_kdtree prims_balltree] [--vector-dims 64] [--cache /tmp]``.
 """
 
 from __future__ import annotations
@@ -44,9 +44,12 @@ def main() -> None:
     ap.add_argument("--rows", type=int, nargs="+", default=[1000, 3000, 6000, 10000, 12000, 20000])
     ap.add_argument("--algorithms", nargs="+", choices=ALGORITHMS, default=list(ALGORITHMS[:3]))
     ap.add_argument("--repeats", type=int, default=2)
+    ap.add_argument("--vector-dims", type=int, default=0, help="skip-gram vector size (0: default)")
     ap.add_argument("--cache", default=tempfile.gettempdir(), help="folder of the vectors")
     args = ap.parse_args()
-    vectors, truth, walks = _vectors(args.nodes, args.seed, Path(args.cache), None)
+    vectors, truth, walks = _vectors(
+        args.nodes, args.seed, Path(args.cache), None, dimensions=args.vector_dims or None
+    )
     print(f"{args.nodes:,}-node planted graph, walks {walks}")
     print(
         "| view | rows | algorithm | wall s | groups | noise | NMI vs first "

@@ -83,7 +83,7 @@ class WalkConfig:
 class EmbeddingConfig:
     """Skip-gram settings (gensim Word2Vec, sg=1, negative sampling).
 
-    ``dimensions`` 16: on planted-community networks of 10,000 to 50,000 members it
+    ``dimensions`` 16: on planted-community networks of 10,000 to 100,000 members it
     recovered the communities better than 64 (NMI up to 0.05 higher) and tied on
     1,000-member LFR graphs and the karate club (benchmarks/RESULTS.md, "Vector
     dimensions at scale").

@@ -30,6 +30,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 from bench_cluster import _vectors  # noqa: E402
 
 from roles.cluster import MIN_GROUP, _reduce  # noqa: E402
+from roles.config import ClusterConfig  # noqa: E402
 
 ALGORITHMS = ("boruvka_kdtree", "prims_kdtree", "prims_balltree", "boruvka_balltree")
 
@@ -57,7 +58,7 @@ def main() -> None:
     )
     print("|---|---|---|---|---|---|---|---|")
     for view, v in vectors.items():
-        x = _reduce(v, 16, 0)
+        x = _reduce(v, ClusterConfig().reduce_to, 0)
         for rows in args.rows:
             rows = min(rows, len(x))
             sample = np.sort(np.random.default_rng(0).choice(len(x), rows, replace=False))

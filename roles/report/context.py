@@ -161,6 +161,7 @@ def _communities(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
         links[b][a] = n
     stab = result.summary.get("stability") or {}
     per = stab.get("communities") or {}
+    reruns = int(stab.get("runs") or 0)
     rows = []
     for c in order[:TOP_COMMUNITIES]:
         part = found[found.community == c]
@@ -219,14 +220,13 @@ def _communities(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
         "map": figure,
         # Re-runs actually made: beyond the confidence budget's size limits there are
         # none, and every community's verdict is "not re-run".
-        "has_stability": bool(per) and int(stab.get("runs") or 0) > 0,
-        "reruns_skipped": not int(stab.get("runs") or 0)
-        and bool(result.summary.get("confidence_budget")),
+        "has_stability": bool(per) and reruns > 0,
+        "reruns_skipped": reruns == 0 and bool(result.summary.get("confidence_budget")),
         "stable": sum(1 for x in per.values() if x.get("verdict") == "stable"),
         "unstable": [int(k) for k in stab.get("unstable_communities", [])],
         "median_confidence": _fmt((stab.get("confidence") or {}).get("median")),
         "share_low": _fmt(100 * ((stab.get("confidence") or {}).get("share_below_0.5") or 0), 0),
-        "reruns": stab.get("runs", 0),
+        "reruns": reruns,
         "between_ties": int(sum(between.values())),
         "inside_ties": int(sum(inside.values())),
     }

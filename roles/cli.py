@@ -20,13 +20,14 @@ log = logging.getLogger("roles")
 EXAMPLES = Path(__file__).resolve().parent / "examples"
 
 
-def _add_input(p: argparse.ArgumentParser) -> None:
-    p.add_argument(
-        "edges",
-        metavar="EDGES",
-        help="the network: a CSV or TSV edge list with a header row "
-        "(source,target[,weight]), a GraphML file or a node-link JSON file",
-    )
+def _add_input(p: argparse.ArgumentParser, *, edges: bool = True) -> None:
+    if edges:
+        p.add_argument(
+            "edges",
+            metavar="EDGES",
+            help="the network: a CSV or TSV edge list with a header row "
+            "(source,target[,weight]), a GraphML file or a node-link JSON file",
+        )
     p.add_argument(
         "--out",
         required=True,
@@ -76,14 +77,23 @@ def _add_input(p: argparse.ArgumentParser) -> None:
     )
 
 
-def _add_report_options(p: argparse.ArgumentParser) -> None:
-    p.add_argument(
-        "--nodes",
-        metavar="FILE",
-        help="CSV of member attributes: a 'node' column plus any others "
-        "(department, site, tier...); members listed only here are kept "
-        "as members without ties",
-    )
+def _add_report_options(p: argparse.ArgumentParser, *, nodes_twice: bool = False) -> None:
+    if nodes_twice:
+        p.add_argument(
+            "--nodes",
+            action="append",
+            metavar="FILE",
+            help="CSV of member attributes (a 'node' column plus any others); once for "
+            "both snapshots, or twice: first for OLD, then for NEW",
+        )
+    else:
+        p.add_argument(
+            "--nodes",
+            metavar="FILE",
+            help="CSV of member attributes: a 'node' column plus any others "
+            "(department, site, tier...); members listed only here are kept "
+            "as members without ties",
+        )
     p.add_argument(
         "--title", default=None, metavar="TEXT", help="title printed on the cover of the report"
     )
@@ -173,6 +183,17 @@ def build_parser() -> argparse.ArgumentParser:
         action="store_true",
         help="also write the random walks (local.walks.tsv, far.walks.tsv)",
     )
+    cmp = sub.add_parser(
+        "compare",
+        help="analyse two snapshots of one network alike and report what changed",
+        description="Analyse OLD and NEW with the same parameters and seed, join their "
+        "members by name, and write report.pdf, report.html and changes.json into --out, "
+        "with each snapshot's own full outputs in old/ and new/.",
+    )
+    cmp.add_argument("old", metavar="OLD", help="the earlier snapshot's edge list")
+    cmp.add_argument("new", metavar="NEW", help="the later snapshot's edge list")
+    _add_input(cmp, edges=False)
+    _add_report_options(cmp, nodes_twice=True)
     demo = sub.add_parser(
         "demo",
         help="write the report of a bundled invented example",
@@ -186,10 +207,11 @@ def build_parser() -> argparse.ArgumentParser:
     )
     demo.add_argument(
         "--scenario",
-        choices=["company", "suppliers"],
+        choices=["company", "suppliers", "company-year"],
         default="company",
         help="'company': a made-up firm's collaboration network; 'suppliers': "
-        "a made-up manufacturer's supplier network (default: company)",
+        "a made-up manufacturer's supplier network; 'company-year': the same firm a "
+        "year on, compared with the first snapshot (a change report) (default: company)",
     )
     demo.add_argument("--seed", type=int, metavar="N", help="random seed")
     demo.add_argument("--quiet", action="store_true", help="print nothing but errors")
@@ -201,10 +223,17 @@ def _demo_args(args: argparse.Namespace) -> argparse.Namespace:
     from .demo import scenario
 
     s = scenario(args.scenario)
+    if s.before_edges is not None:
+        extra = dict(
+            command="compare",
+            old=str(s.before_edges),
+            new=str(s.edges),
+            nodes=[str(s.before_nodes), str(s.nodes)],
+        )
+    else:
+        extra = dict(command="report", edges=str(s.edges), nodes=str(s.nodes))
     return argparse.Namespace(
-        command="report",
-        edges=str(s.edges),
-        nodes=str(s.nodes),
+        **extra,
         out=args.out,
         config=None,
         seed=args.seed,
@@ -233,6 +262,8 @@ def _dispatch(args: argparse.Namespace) -> None:
         commands.report(args)
     elif args.command == "embed":
         commands.embed(args)
+    elif args.command == "compare":
+        commands.compare(args)
 
 
 def main(argv: list[str] | None = None) -> int:

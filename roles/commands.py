@@ -19,7 +19,7 @@ from .load import LoadedNetwork, load_edges, load_nodes
 from .output import OutputFolder
 from .progress import StageBar
 
-__all__ = ["report", "embed", "pseudonymize"]
+__all__ = ["report", "embed", "compare", "pseudonymize"]
 
 log = logging.getLogger("roles")
 
@@ -161,3 +161,129 @@ def embed(args: argparse.Namespace) -> None:
             csr, views, folder, config=config, source=_source_info(net), keep_walks=args.keep_walks
         )
     log.info("wrote %s", Path(args.out))
+
+
+def _snapshot(
+    edges: str, nodes: str | None, args: argparse.Namespace
+) -> tuple[nx.Graph, dict[str, Any] | None, dict[str, Any]]:
+    """One snapshot of ``roles compare``: its graph, attributes and source record."""
+    net = load_edges(
+        edges,
+        directed=args.directed,
+        source=args.source_column,
+        target=args.target_column,
+        weight=args.weight_column or None,
+    )
+    graph, attributes, source = net.graph, None, _source_info(net)
+    if nodes:
+        table = load_nodes(nodes, net)
+        graph = graph.copy()
+        graph.add_nodes_from(table.extra_nodes)
+        attributes = dict(table.attributes)
+        source["nodes_file"] = Path(nodes).name
+    return graph, attributes, source
+
+
+def compare(args: argparse.Namespace) -> None:
+    """``roles compare``: analyse two snapshots alike and report what changed."""
+    from .export import _write_json, write_report_outputs
+    from .pipeline import run
+    from .report.changes import build_change_context, render_changes
+    from .snapshots import compare_results
+
+    config = load_config(args.config).with_seed(args.seed)
+    if args.min_group_size < 1:
+        raise InputError(f"--min-group-size must be 1 or more. Got {args.min_group_size}.")
+    nodes = list(args.nodes or [])
+    if len(nodes) > 2:
+        raise InputError(
+            "--nodes takes one file for both snapshots, or two (the first for OLD, the "
+            f"second for NEW). Got {len(nodes)}."
+        )
+    if args.key_file and not args.pseudonymize:
+        raise InputError(
+            "--key-file only makes sense with --pseudonymize; add it or drop --key-file."
+        )
+    node_files = nodes * 2 if len(nodes) == 1 else nodes or [None, None]
+    inputs = [Path(args.old), Path(args.new)] + [Path(n) for n in nodes]
+    out = OutputFolder(args.out, inputs=inputs)
+    if args.key_file:
+        _check_key_file(Path(args.key_file), inputs, Path(args.out))
+    snaps = [_snapshot(e, n, args) for e, n in zip((args.old, args.new), node_files, strict=True)]
+    key = None
+    if args.pseudonymize:
+        # One key for both snapshots, so that a member keeps its code across them.
+        prefix = {"organisation": "P", "supply": "F"}.get(args.kind, "M")
+        union = nx.Graph()
+        for g, _, _ in snaps:
+            union.add_nodes_from(g)
+        _, key = pseudonymize(union, prefix)
+        codes = {name: code for code, name in key.items()}
+        snaps = [
+            (
+                nx.relabel_nodes(g, codes, copy=True),
+                {codes[n]: a for n, a in attrs.items() if n in codes} if attrs else None,
+                {
+                    **src,
+                    "file": "(name withheld)",
+                    **({"nodes_file": "(name withheld)"} if "nodes_file" in src else {}),
+                },
+            )
+            for g, attrs, src in snaps
+        ]
+    bar = StageBar() if not args.quiet else None
+    results = []
+    for label, (graph, attributes, source) in zip(("before", "after"), snaps, strict=True):
+        if bar:
+            bar(f"analysing the snapshot {label}")
+        results.append(
+            run(graph, config=config, attributes=attributes, group_by=args.group_by, source=source)
+        )
+    old, new = results
+    changes = compare_results(old, new)
+    title = args.title or "What changed"
+    made = datetime.now(timezone.utc).strftime("%Y-%m-%d %H:%M UTC")
+    if bar:
+        bar("writing the reports")
+    with out as folder:
+        for sub, result, label in (("old", old, "before"), ("new", new, "after")):
+            (folder / sub).mkdir()
+            write_report_outputs(
+                result,
+                folder / sub,
+                title=f"{title}: {label}",
+                kind=args.kind,
+                paper=args.paper,
+                min_group_size=args.min_group_size,
+                made=made,
+                pseudonymized=bool(args.pseudonymize),
+            )
+        names = tuple(str(s[2]["file"]) for s in snaps)
+        record = changes.as_dict()
+        record["input"] = {
+            "old": {"file": names[0], "sha256": snaps[0][2]["sha256"]},
+            "new": {"file": names[1], "sha256": snaps[1][2]["sha256"]},
+        }
+        record["parameters"] = new.summary["parameters"]
+        _write_json(folder / "changes.json", record)
+        context = build_change_context(
+            changes,
+            old,
+            new,
+            title=title,
+            kind=args.kind,
+            paper=args.paper,
+            min_group_size=args.min_group_size,
+            made=made,
+            group_by=args.group_by,
+            inputs=(names[0], names[1]),
+            pseudonymized=bool(args.pseudonymize),
+        )
+        render_changes(folder, context)
+    if key is not None and args.key_file:
+        from .output import write_csv
+
+        write_csv(Path(args.key_file), ["code", "name"], sorted(key.items()))
+    if bar:
+        bar.close()
+    log.info("wrote %s", Path(args.out) / "report.pdf")

@@ -22,6 +22,9 @@ class Scenario:
     kind: str
     group_by: str
     title: str
+    #: For a change report: the earlier snapshot's edges and nodes (``None`` otherwise).
+    before_edges: Path | None = None
+    before_nodes: Path | None = None
 
 
 def _dir() -> Path:
@@ -45,11 +48,21 @@ SCENARIOS = {
         group_by="tier",
         title="Calder Motive: supplier dependencies (invented example)",
     ),
+    "company-year": dict(
+        edges="company_year_edges.csv",
+        nodes="company_year_people.csv",
+        before_edges="company_edges.csv",
+        before_nodes="company_people.csv",
+        directed=False,
+        kind="organisation",
+        group_by="department",
+        title="Tessary Works: a year on (invented example)",
+    ),
 }
 
 
 def scenario(name: str) -> Scenario:
-    """The scenario called ``name`` ('company' or 'suppliers')."""
+    """The scenario called ``name`` ('company', 'suppliers' or 'company-year')."""
     if name not in SCENARIOS:
         raise ConfigError(f"Unknown scenario {name!r}. Choose one of: {', '.join(SCENARIOS)}.")
     spec = SCENARIOS[name]
@@ -62,4 +75,6 @@ def scenario(name: str) -> Scenario:
         kind=str(spec["kind"]),
         group_by=str(spec["group_by"]),
         title=str(spec["title"]),
+        before_edges=base / str(spec["before_edges"]) if "before_edges" in spec else None,
+        before_nodes=base / str(spec["before_nodes"]) if "before_nodes" in spec else None,
     )

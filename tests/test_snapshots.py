@@ -178,3 +178,47 @@ def test_two_seeds_on_one_snapshot_show_no_change():
     assert {e.event for e in changes.events} == {"continuation"}
     assert changes.moved == ()
     assert changes.ties.added == changes.ties.removed == 0
+
+
+def test_company_year_demo_finds_its_planted_changes(tmp_path):
+    # examples/make_company_year.py plants: Design split in two, the Sales-Logistics
+    # bridge Sava Quintel left, eight hires in Assembly, four leavers in Quality.
+    import json
+
+    from _cli import roles
+
+    out = tmp_path / "year"
+    proc = roles("demo", "--scenario", "company-year", "--out", str(out), "--quiet")
+    assert proc.returncode == 0, proc.stderr
+    for name in ("report.pdf", "report.html", "changes.json"):
+        assert (out / name).is_file()
+    for sub in ("old", "new"):
+        assert (out / sub / "summary.json").is_file() and (out / sub / "report.pdf").is_file()
+    ch = json.loads((out / "changes.json").read_text(encoding="utf-8"))
+    assert len(ch["members"]["joined"]) == 8
+    assert "Sava Quintel" in ch["members"]["left"] and len(ch["members"]["left"]) == 5
+    events = {e["event"] for e in ch["communities"]}
+    assert {"splitting", "growth", "contraction"} <= events
+    assert events <= {"splitting", "growth", "contraction", "continuation"}
+    split = next(e for e in ch["communities"] if e["event"] == "splitting")
+    old = json.loads((out / "old" / "summary.json").read_text(encoding="utf-8"))
+    # the split community is the one that was mostly Design in the first snapshot
+    assert old["formal"]["crosstab"]["Design"][str(split["old"][0])] >= 30
+    stopped = {(r["member"], r["role"]) for r in ch["roles"] if r["change"] == "stopped"}
+    assert ("Sava Quintel", "bridge-like") in stopped
+    assert ch["moved"] == []
+
+
+def test_compare_refuses_three_nodes_files(tmp_path):
+    from _cli import roles
+
+    edges = tmp_path / "e.csv"
+    edges.write_text("source,target\na,b\nb,c\n", encoding="utf-8")
+    out = tmp_path / "out"
+    proc = roles(
+        "compare", str(edges), str(edges), "--out", str(out),
+        "--nodes", str(edges), "--nodes", str(edges), "--nodes", str(edges),
+    )  # fmt: skip
+    assert proc.returncode == 2
+    assert proc.stderr.startswith("error: --nodes takes one file for both snapshots")
+    assert not out.exists()

@@ -33,12 +33,13 @@ def _environment() -> jinja2.Environment:
     )
 
 
-def render_html(context: dict[str, Any]) -> str:
-    """The report as one self-contained HTML document."""
+def render_html(context: dict[str, Any], template: str = "report.html") -> str:
+    """The report (or another page of ``templates/``) as one self-contained HTML
+    document."""
     env = _environment()
     css = (template_dir() / "report.css").read_text(encoding="utf-8")
     css = css.replace("@PAPER@", "A4" if context.get("paper") == "A4" else "letter")
-    return env.get_template("report.html").render(css=css, **context)
+    return env.get_template(template).render(css=css, **context)
 
 
 def _refuse(url: str) -> ValueError:

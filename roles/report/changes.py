@@ -108,8 +108,10 @@ def flow_figure(
     def stack(ids: list[int], sizes: Mapping[int, int], other: int) -> dict[Any, list[float]]:
         pos: dict[Any, list[float]] = {}
         y = height
-        for c in [*ids, "others"] if other else ids:
-            h = sizes[c] if c != "others" else other
+        boxes: list[tuple[Any, int]] = [(c, sizes[c]) for c in ids]
+        if other:
+            boxes.append(("others", other))
+        for c, h in boxes:
             pos[c] = [y - h, y]  # bottom, top
             y -= h + gap
         return pos
@@ -279,7 +281,8 @@ def build_change_context(
         ],
         "n_pairs": len(pairs),
         "event_counts": [(_EVENT_WORDS[k], counts[k]) for k in _EVENT_WORDS if counts[k]],
-        "events": interesting or events,
+        "events": (interesting or events)[: TOP * 2],
+        "n_events": len(interesting or events),
         "n_continued": counts["continuation"],
         "moved": [
             {

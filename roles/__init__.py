@@ -7,6 +7,16 @@ The main entry point is :func:`run`, which takes a networkx graph and returns a
 from .config import Config, load_config
 from .errors import ConfigError, InputError, RolesError
 from .pipeline import Result, run
+from .snapshots import compare_graphs
 
-__all__ = ["run", "Result", "Config", "load_config", "RolesError", "InputError", "ConfigError"]
+__all__ = [
+    "run",
+    "compare_graphs",
+    "Result",
+    "Config",
+    "load_config",
+    "RolesError",
+    "InputError",
+    "ConfigError",
+]
 __version__ = "0.1.0"

@@ -7,6 +7,19 @@ The main entry point is :func:`run`, which takes a networkx graph and returns a
 from .config import Config, load_config
 from .errors import ConfigError, InputError, RolesError
 from .pipeline import Result, run
+from .whatif import Removal, Robustness, robustness, what_if
 
-__all__ = ["run", "Result", "Config", "load_config", "RolesError", "InputError", "ConfigError"]
+__all__ = [
+    "run",
+    "Result",
+    "Config",
+    "load_config",
+    "RolesError",
+    "InputError",
+    "ConfigError",
+    "what_if",
+    "Removal",
+    "robustness",
+    "Robustness",
+]
 __version__ = "0.1.0"

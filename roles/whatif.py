@@ -393,7 +393,7 @@ class _Network:
     def __init__(
         self,
         graph: nx.Graph,
-        communities: Mapping[Hashable, int] | None,
+        communities: Mapping[Any, int] | None,
         *,
         seed: int,
         efficiency_work: int,
@@ -607,11 +607,12 @@ def check_members(graph: nx.Graph, names: Iterable[str], *, option: str = "--rem
                 out.append(known[name])
             continue
         close = difflib.get_close_matches(name, list(known), n=3, cutoff=0.6)
-        hint = (
-            "The closest names in the network are " + ", ".join(repr(c) for c in close) + "."
-            if close
-            else "No name in the network is close to it."
-        )
+        if len(close) > 1:
+            hint = "The closest names in the network are " + ", ".join(map(repr, close)) + "."
+        elif close:
+            hint = f"The closest name in the network is {close[0]!r}."
+        else:
+            hint = "No name in the network is close to it."
         raise InputError(
             f"{option}: there is no member named {name!r} in the network. {hint} Names must "
             "match the edge list exactly, capitals and spaces included."
@@ -623,7 +624,7 @@ def what_if_many(
     graph: nx.Graph,
     removals: Sequence[Sequence[Hashable]],
     *,
-    communities: Mapping[Hashable, int] | None = None,
+    communities: Mapping[Any, int] | None = None,
     seed: int = 0,
     efficiency_work: int = EFFICIENCY_WORK,
 ) -> list[Removal]:
@@ -640,7 +641,7 @@ def what_if(
     graph: nx.Graph,
     remove: Sequence[Hashable],
     *,
-    communities: Mapping[Hashable, int] | None = None,
+    communities: Mapping[Any, int] | None = None,
     seed: int = 0,
     efficiency_work: int = EFFICIENCY_WORK,
 ) -> Removal:
@@ -716,7 +717,7 @@ def _sampled(sizes: np.ndarray, n: int, points: int) -> RobustnessCurve:
 
 def robustness(
     graph: nx.Graph,
-    betweenness: Mapping[Hashable, float],
+    betweenness: Mapping[Any, float],
     *,
     orders: int = RANDOM_ORDERS,
     seed: int = 0,
@@ -774,7 +775,7 @@ def robustness(
 
 
 def _robustness(
-    net: _Network, betweenness: Mapping[Hashable, float], *, orders: int, seed: int, points: int
+    net: _Network, betweenness: Mapping[Any, float], *, orders: int, seed: int, points: int
 ) -> Robustness:
     n = net.n
     score = np.array([float(betweenness.get(v, 0.0)) for v in net.nodes])
@@ -834,9 +835,9 @@ def default_removals(
 def assess(
     graph: nx.Graph,
     *,
-    communities: Mapping[Hashable, int] | None,
-    betweenness: Mapping[Hashable, float],
-    dependents: Mapping[Hashable, int],
+    communities: Mapping[Any, int] | None,
+    betweenness: Mapping[Any, float],
+    dependents: Mapping[Any, int],
     bridges: Sequence[Hashable],
     remove: Sequence[Hashable] | None = None,
     seed: int = 0,

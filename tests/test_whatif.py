@@ -297,3 +297,84 @@ def test_unknown_name_names_the_closest():
     with pytest.raises(InputError, match="No name in the network is close"):
         check_members(g, ["zzz"])
 
+
+# ---------------------------------------------------------------- command line
+
+EDGES = (
+    "source,target\nAnna Berg,Ben Cole\nBen Cole,Cai Dunn\nCai Dunn,Dora Eck\nDora Eck,Anna Berg\n"
+)
+
+
+@pytest.mark.parametrize(
+    "extra, unknown",
+    [
+        (["--remove", "Anna Burg"], "'Anna Burg'"),
+        (["--remove", "Ben Cole", "--remove-file", "gone.txt"], "'Cia Dunn'"),
+    ],
+)
+def test_unknown_name_error_exit_2_nothing_written(tmp_path, extra, unknown):
+    from _cli import roles
+
+    (tmp_path / "e.csv").write_text(EDGES)
+    (tmp_path / "gone.txt").write_text("Cia Dunn\n")
+    p = roles("report", "e.csv", "--out", "out", *extra, cwd=tmp_path)
+    assert p.returncode == 2
+    lines = p.stderr.strip().splitlines()
+    assert len(lines) == 1 and lines[0].startswith("error:")
+    assert unknown in lines[0]
+    assert "'Anna Berg'" in lines[0] or "'Cai Dunn'" in lines[0]  # the closest known name
+    assert not (tmp_path / "out").exists()
+
+
+def test_remove_file_reading_rules(tmp_path):
+    from roles.namelist import read_names
+
+    f = tmp_path / "gone.txt"
+    # UTF-8 with a byte-order mark, blank lines, spaces, a quoted name with a comma.
+    f.write_bytes('\ufeffAnna Berg \r\n\r\n"Cole, Ben"\n'.encode())
+    assert read_names(f) == ["Anna Berg", "Cole, Ben"]
+    f.write_text("Anna\tBen\n")
+    with pytest.raises(InputError, match="line 1"):
+        read_names(f)
+    f.write_text("\n\n")
+    with pytest.raises(InputError, match="no names"):
+        read_names(f)
+    with pytest.raises(InputError, match="does not exist"):
+        read_names(tmp_path / "missing.txt")
+
+
+def test_remove_runs_one_scenario_into_summary_and_report(tmp_path):
+    import json
+
+    from _cli import roles
+
+    # Two squares joined through Eva: removing Eva and Ana leaves two pieces of three,
+    # (Ben, Cai, Dan) and (Fay, Gus, Hal); the piece holding the first name stays.
+    (tmp_path / "e.csv").write_text(
+        "source,target\nAna,Ben\nBen,Cai\nCai,Dan\nDan,Ana\nDan,Eva\nEva,Fay\nFay,Gus\n"
+        "Gus,Hal\nHal,Eva\n"
+    )
+    (tmp_path / "gone.txt").write_text("Ana\n")
+    p = roles(
+        "report",
+        "e.csv",
+        "--out",
+        "out",
+        "--quiet",
+        "--remove",
+        "Eva",
+        "--remove-file",
+        "gone.txt",
+        cwd=tmp_path,
+    )
+    assert p.returncode == 0, p.stderr
+    s = json.loads((tmp_path / "out" / "summary.json").read_text())
+    assert [w["removed"] for w in s["what_if"]] == [["Ana", "Eva"]]
+    assert s["what_if"][0]["cut_off"] == ["Fay", "Gus", "Hal"]
+    assert s["what_if"][0]["ties_lost"] == 5  # Ana-Ben, Dan-Ana, Dan-Eva, Eva-Fay, Hal-Eva
+    for order in ("betweenness_order", "random_order"):
+        assert len(s["robustness"][order]["curve"]) == 9  # all 9 steps of 8 members
+        assert s["robustness"][order]["curve"][0] == 1.0
+        assert s["robustness"][order]["curve"][-1] == 0.0
+    html = (tmp_path / "out" / "report.html").read_text()
+    assert "If members were gone" in html and 'id="what-if"' in html

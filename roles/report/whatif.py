@@ -176,4 +176,7 @@ def what_if_context(result: Result, v: Mapping[str, str], kind: str) -> dict[str
         "figure": figure,
         "meaning": _meaning(what, v),
         "orders": rob.random_orders,
+        "sources": what.scenarios[0].efficiency_sources if what.scenarios else 0,
+        "sampled": any(r.efficiency_error > 0 for r in what.scenarios)
+        or (bool(what.scenarios) and what.scenarios[0].efficiency_sources < len(result.nodes)),
     }

@@ -51,6 +51,13 @@ def _half_point(curve: RobustnessCurve) -> float | None:
     return float(curve.removed[below[0]]) if below.shape[0] else None
 
 
+def _three(x: float) -> str:
+    """At least three decimals, and three significant digits below 0.1."""
+    if x <= 0:
+        return "0"
+    return f"{x:.{max(3, 2 - int(np.floor(np.log10(x))))}f}"
+
+
 def _pct(x: float) -> str:
     return f"{100 * x:.0f}%"
 
@@ -94,8 +101,8 @@ def _scenario(r: Removal, v: Mapping[str, str], directed: bool, grouped: bool) -
         split = ", ".join(f"{v['Community']} {c}" for c in r.communities_split)
         rows.append((f"{v['Communities']} that fall apart", split or "none"))
     e0, e1 = r.efficiency_before, r.efficiency_after
-    change = f" ({(e1 - e0) / e0:+.0%})" if e0 > 0 else ""
-    eff = f"{e0:.3g} → {e1:.3g}{change}"
+    change = f" ({(e1 - e0) / e0:+.1%})" if e0 > 0 else ""
+    eff = f"{_three(e0)} → {_three(e1)}{change}"
     if r.efficiency_error > 0:
         eff += (
             f", estimated from {r.efficiency_sources:,} randomly chosen {v['members']} "

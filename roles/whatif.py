@@ -123,6 +123,8 @@ class Removal:
     efficiency_error : float
         Standard error of ``efficiency_after - efficiency_before`` from the sampled
         sources; 0 when exact.
+    efficiency_exact : bool
+        Whether every member was a source (no sampling).
     final_customers_cut_off : tuple of str or None
         Directed only: the members of ``cut_off`` without customers of their own.
     why : str
@@ -142,6 +144,7 @@ class Removal:
     efficiency_after: float
     efficiency_sources: int
     efficiency_error: float
+    efficiency_exact: bool
     final_customers_cut_off: tuple[str, ...] | None = None
     why: str = "asked"
     pairs_tried: int = 0
@@ -163,6 +166,7 @@ class Removal:
             "efficiency_after": round(self.efficiency_after, 6),
             "efficiency_sources": self.efficiency_sources,
             "efficiency_error": round(self.efficiency_error, 6),
+            "efficiency_exact": self.efficiency_exact,
         }
         if self.final_customers_cut_off is not None:
             out["final_customers_cut_off"] = list(self.final_customers_cut_off)
@@ -563,6 +567,7 @@ class _Network:
             efficiency_after=e1,
             efficiency_sources=int(self.eff_sources.shape[0]),
             efficiency_error=error,
+            efficiency_exact=self.exact,
             final_customers_cut_off=final,
             why=why,
             pairs_tried=pairs,
@@ -678,7 +683,8 @@ def what_if(
     name in sorted order stays. Directed: a member is cut off when a source (a member
     without suppliers, in the whole network) reached it before and no remaining source
     does after; members that no source ever reached (a cycle of firms supplying one
-    another) are never cut off.
+    another) are never cut off. Self-loops are ignored (a member with only a tie to
+    itself has no supplier).
 
     Global efficiency [1]_ is the mean of 1/d over ordered pairs of distinct members,
     1/d = 0 when no path leads from one to the other, taken over the members that

@@ -103,7 +103,7 @@ def _scenario(r: Removal, v: Mapping[str, str], directed: bool, grouped: bool) -
     e0, e1 = r.efficiency_before, r.efficiency_after
     change = f" ({(e1 - e0) / e0:+.1%})" if e0 > 0 else ""
     eff = f"{_three(e0)} → {_three(e1)}{change}"
-    if r.efficiency_error > 0:
+    if not r.efficiency_exact:
         eff += (
             f", estimated from {r.efficiency_sources:,} randomly chosen {v['members']} "
             f"(± {r.efficiency_error:.2g})"
@@ -184,6 +184,5 @@ def what_if_context(result: Result, v: Mapping[str, str], kind: str) -> dict[str
         "meaning": _meaning(what, v),
         "orders": rob.random_orders,
         "sources": what.scenarios[0].efficiency_sources if what.scenarios else 0,
-        "sampled": any(r.efficiency_error > 0 for r in what.scenarios)
-        or (bool(what.scenarios) and what.scenarios[0].efficiency_sources < len(result.nodes)),
+        "sampled": any(not r.efficiency_exact for r in what.scenarios),
     }

@@ -8,6 +8,7 @@ from .config import Config, load_config
 from .errors import ConfigError, InputError, RolesError
 from .pipeline import Result, run
 from .snapshots import compare_graphs
+from .whatif import Removal, Robustness, robustness, what_if
 
 __all__ = [
     "run",
@@ -18,5 +19,9 @@ __all__ = [
     "RolesError",
     "InputError",
     "ConfigError",
+    "what_if",
+    "Removal",
+    "robustness",
+    "Robustness",
 ]
 __version__ = "0.1.0"

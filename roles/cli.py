@@ -129,6 +129,18 @@ def _add_report_options(p: argparse.ArgumentParser, *, nodes_twice: bool = False
         "(keep it apart from the report)",
     )
     p.add_argument(
+        "--remove",
+        action="append",
+        metavar="NAME",
+        help="a member to take out in the 'if members were gone' scenario; repeat it to "
+        "take several out together (replaces the scenarios chosen by default)",
+    )
+    p.add_argument(
+        "--remove-file",
+        metavar="FILE",
+        help="like --remove, for every name in FILE (one name per line)",
+    )
+    p.add_argument(
         "--paper",
         choices=["a4", "letter"],
         default="a4",
@@ -250,6 +262,8 @@ def _demo_args(args: argparse.Namespace) -> argparse.Namespace:
         pseudonymize=False,
         key_file=None,
         paper="a4",
+        remove=None,
+        remove_file=None,
     )
 
 

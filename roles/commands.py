@@ -72,6 +72,19 @@ def _check_key_file(key: Path, inputs: list[Path], out: Path) -> None:
         )
 
 
+def _removed_members(args: argparse.Namespace, graph: nx.Graph) -> list[Any]:
+    """The members of ``--remove`` and ``--remove-file``, checked against the network."""
+    from .namelist import read_names
+    from .whatif import check_members
+
+    names = list(getattr(args, "remove", None) or [])
+    option = "--remove"
+    if getattr(args, "remove_file", None):
+        names += read_names(args.remove_file)
+        option = "--remove/--remove-file" if args.remove else "--remove-file"
+    return check_members(graph, names, option=option) if names else []
+
+
 def report(args: argparse.Namespace) -> None:
     """``roles report``: load, analyse, write report.pdf/html, nodes.csv, summary.json,
     graph.graphml."""
@@ -101,6 +114,7 @@ def report(args: argparse.Namespace) -> None:
         source["nodes_file"] = Path(args.nodes).name
         source["nodes_only_in_nodes_file"] = len(table.extra_nodes)
         source["nodes_missing_from_nodes_file"] = len(table.missing_nodes)
+    remove = _removed_members(args, graph)  # unknown names stop the run before any work
     key = None
     if args.pseudonymize:
         prefix = {"organisation": "P", "supply": "F"}.get(args.kind, "M")
@@ -109,6 +123,9 @@ def report(args: argparse.Namespace) -> None:
             back = {v: k for k, v in key.items()}
             attributes = {back[n]: a for n, a in attributes.items() if n in back}
         source["file"] = "(name withheld)"
+        if remove:
+            codes = {name: code for code, name in key.items()}
+            remove = [codes[str(v)] for v in remove]
     bar = StageBar() if not args.quiet else None
     result = run(
         graph,
@@ -117,6 +134,7 @@ def report(args: argparse.Namespace) -> None:
         group_by=args.group_by,
         source=source,
         progress=bar,
+        remove=remove,
     )
     if bar:
         bar("writing the report")
@@ -210,15 +228,18 @@ def compare(args: argparse.Namespace) -> None:
     if args.key_file:
         _check_key_file(Path(args.key_file), inputs, Path(args.out))
     snaps = [_snapshot(e, n, args) for e, n in zip((args.old, args.new), node_files, strict=True)]
+    union = nx.Graph()
+    for g, _, _ in snaps:
+        union.add_nodes_from(g)
+    # One removal scenario for both snapshots; a name must be in at least one of them.
+    remove = [str(v) for v in _removed_members(args, union)]
     key = None
     if args.pseudonymize:
         # One key for both snapshots, so that a member keeps its code across them.
         prefix = {"organisation": "P", "supply": "F"}.get(args.kind, "M")
-        union = nx.Graph()
-        for g, _, _ in snaps:
-            union.add_nodes_from(g)
         _, key = pseudonymize(union, prefix)
         codes = {name: code for code, name in key.items()}
+        remove = [codes[n] for n in remove]
         snaps = [
             (
                 nx.relabel_nodes(g, codes, copy=True),
@@ -237,7 +258,14 @@ def compare(args: argparse.Namespace) -> None:
         if bar:
             bar(f"analysing the snapshot {label}")
         results.append(
-            run(graph, config=config, attributes=attributes, group_by=args.group_by, source=source)
+            run(
+                graph,
+                config=config,
+                attributes=attributes,
+                group_by=args.group_by,
+                source=source,
+                remove=[n for n in remove if n in graph],
+            )
         )
     old, new = results
     changes = compare_results(old, new)

@@ -9,7 +9,7 @@ from __future__ import annotations
 import functools
 import platform
 import time
-from collections.abc import Callable, Iterator, Mapping
+from collections.abc import Callable, Iterator, Mapping, Sequence
 from contextlib import contextmanager
 from dataclasses import dataclass, field
 from typing import Any
@@ -299,6 +299,7 @@ def run(
     group_by: str | None = None,
     source: Mapping[str, Any] | None = None,
     progress: Progress | None = None,
+    remove: Sequence[Any] | None = None,
 ) -> Result:
     """Analyse ``graph``: two node2vec views, their groups, roles and agreement.
 
@@ -320,6 +321,9 @@ def run(
         echoed in the summary.
     progress : callable, optional
         Called with each stage's name as it starts.
+    remove : sequence, optional
+        Members to remove together in the one removal scenario; without it, the
+        default scenarios of :func:`roles.whatif.assess`.
 
     Returns
     -------
@@ -354,6 +358,10 @@ def run(
             )
     if not all(isinstance(node, str) for node in graph):
         graph = nx.relabel_nodes(graph, {n: str(n) for n in graph}, copy=True)
+    if remove:
+        from .whatif import check_members
+
+        remove = check_members(graph, [str(v) for v in remove])  # before any work
     seeds = stage_seeds(config.seed)
     timer = _Timer(progress)
     names = [str(n) for n in graph.nodes()]
@@ -524,6 +532,18 @@ def run(
 
     bridges = rank_bridges(table)
     hubs = rank_hubs(table)
+    with timer.stage("what if"):
+        from .whatif import assess as what_if
+
+        extras["what_if"] = what_if(
+            graph,
+            communities=community_of if groupings[community_view].n_groups > 0 else None,
+            betweenness=dict(zip(names, nodes["betweenness"], strict=True)),
+            dependents=dict(zip(names, nodes["dependents"], strict=True)),
+            bridges=bridges,
+            remove=remove,
+            seed=stage_seeds(config.seed, 9)[8],
+        )
     grouped = groupings[community_view].n_groups > 0
     n_comm = int(communities.max())
     summary: dict[str, Any] = {
@@ -574,6 +594,8 @@ def run(
         "timings": timer.timings,
         "view_timings": {view: w.seconds for view, w in work.items()},
     }
+    summary["what_if"] = [r.as_summary() for r in extras["what_if"].scenarios]
+    summary["robustness"] = extras["what_if"].robustness.as_summary()
     if confidence is not None:
         summary.update(confidence.as_summary())
         extras["confidence"] = confidence

@@ -47,6 +47,9 @@ def all_figures() -> dict[str, F.Figure]:
         "map": F.community_map(sizes, ties, ["1", "2", "3", "4"]),
         "roles": F.role_map(z, p, roles, names=names, annotate=range(len(HOSTILE))),
         "deps": F.dependents_chart(HOSTILE, [9, 7, 5, 3, 2, 1], reach=[12, 7, 9, 3, 4, 1]),
+        "robust": F.robustness_chart(
+            np.linspace(0, 1, 51), np.linspace(1, 0, 51) ** 3, np.linspace(1, 0, 51), R=(0.2, 0.5)
+        ),
         "cont": F.contingency_heatmap(
             np.array([[3, 0], [1, 4]]),
             row_labels=["a", "b"],
@@ -96,6 +99,9 @@ def test_same_input_same_bytes():
     a = F.community_map([5, 4, 3], np.ones((3, 3)), ["1", "2", "3"])
     b = F.community_map([5, 4, 3], np.ones((3, 3)), ["1", "2", "3"])
     assert a.svg == b.svg
+    x = np.linspace(0, 1, 11)
+    c = F.robustness_chart(x, 1 - x, 1 - x**2, R=(0.4, 0.6))
+    assert c.svg == F.robustness_chart(x, 1 - x, 1 - x**2, R=(0.4, 0.6)).svg
 
 
 def test_ids_do_not_collide_between_figures_on_one_page(all_figures):

@@ -38,6 +38,7 @@ SECTIONS = [
     "and how they connect",
     "Roles: hubs, bridges",
     "Dependencies: who others rely on",
+    "If people left",  # the 'if members were gone' section in organisation words
     "Two ways of looking",
     "Cautions before you act",
     "How this report was made",
@@ -455,3 +456,20 @@ def test_no_rerun_verdicts_when_no_reruns_were_made(karate_result):
     )
     assert "re-runwithotherseedswasnottested" in words(skipped)
     assert "re-run0times" not in words(skipped)
+
+
+def test_what_if_section_of_a_supply_tree(supply_result):
+    # The default scenarios start with the worst single point of failure, Firm 00, the
+    # root of the tree: every other firm loses its only source of supply.
+    ctx = build_context(
+        supply_result, title="t", kind="supply", paper="a4", min_group_size=5, made=MADE
+    )
+    w = ctx["what_if"]
+    assert w["title"] == "If firms failed" and w["directed"] and not w["asked"]
+    first = w["scenarios"][0]
+    assert first["removed"] == "Firm 00"
+    rows = dict(first["rows"])
+    assert rows["Firms left without any source of supply"].startswith("39: ")
+    assert "<svg" in w["figure"].svg and "R = " in w["figure"].svg
+    html = render_html(ctx)
+    assert 'id="what-if"' in html and "stock, contracts" in html

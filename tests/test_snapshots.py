@@ -222,3 +222,17 @@ def test_compare_refuses_three_nodes_files(tmp_path):
     assert proc.returncode == 2
     assert proc.stderr.startswith("error: --nodes takes one file for both snapshots")
     assert not out.exists()
+
+
+def test_compare_checks_removed_names_against_both_snapshots(tmp_path):
+    from _cli import roles
+
+    old = tmp_path / "old.csv"
+    new = tmp_path / "new.csv"
+    old.write_text("source,target\nanna,bert\nbert,carl\n", encoding="utf-8")
+    new.write_text("source,target\nbert,carl\ncarl,dora\n", encoding="utf-8")
+    out = tmp_path / "out"
+    proc = roles("compare", str(old), str(new), "--out", str(out), "--remove", "dorra")
+    assert proc.returncode == 2
+    assert "dorra" in proc.stderr and "dora" in proc.stderr  # the closest known name
+    assert not out.exists()

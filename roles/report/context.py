@@ -17,6 +17,7 @@ import pandas as pd
 
 from ..pipeline import Result
 from . import figures
+from .whatif import what_if_context
 
 __all__ = ["build_context", "VOCABULARY", "TOP", "TOP_COMMUNITIES"]
 
@@ -883,5 +884,6 @@ def build_context(
     ctx["views"] = _views(result, v)
     ctx["formal"] = _formal(result, v, min_group_size)
     ctx["method"] = _method(result, v)
+    ctx["what_if"] = what_if_context(result, v, kind)
     ctx["first_looks"] = _first_looks(ctx, v, clear)
     return ctx

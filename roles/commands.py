@@ -15,13 +15,16 @@ import networkx as nx
 
 from .config import load_config
 from .errors import InputError
-from .load import LoadedNetwork, load_edges, load_nodes
+from .load import LoadedNetwork, check_group_column, load_edges, load_nodes
 from .output import OutputFolder
 from .progress import StageBar
 
 __all__ = ["report", "embed", "pseudonymize"]
 
 log = logging.getLogger("roles")
+
+#: What ``roles report`` writes, checked against the output folder before the work.
+REPORT_FILES = ("report.pdf", "report.html", "nodes.csv", "summary.json", "graph.graphml")
 
 
 def _load(args: argparse.Namespace) -> LoadedNetwork:
@@ -86,15 +89,23 @@ def report(args: argparse.Namespace) -> None:
             "--key-file only makes sense with --pseudonymize; add it or drop --key-file."
         )
     inputs = [Path(args.edges)] + ([Path(args.nodes)] if args.nodes else [])
-    out = OutputFolder(args.out, inputs=inputs)  # refuses a bad target before the work
+    # Refuses a bad target before the work: see roles.output.
+    out = OutputFolder(
+        args.out,
+        inputs=inputs + ([Path(args.config)] if args.config else []),
+        command="report",
+        expected=REPORT_FILES,
+    )
     if args.key_file:
         _check_key_file(Path(args.key_file), inputs, Path(args.out))
     net = _load(args)
     graph = net.graph
     attributes = None
     source = _source_info(net)
-    if args.nodes:
-        table = load_nodes(args.nodes, net)
+    table = load_nodes(args.nodes, net) if args.nodes else None
+    if args.group_by:
+        check_group_column(table, args.group_by)  # before the analysis, not after it
+    if table is not None:
         graph = graph.copy()
         graph.add_nodes_from(table.extra_nodes)
         attributes = table.attributes
@@ -148,7 +159,13 @@ def embed(args: argparse.Namespace) -> None:
     from .graph import to_csr
 
     config = load_config(args.config).with_seed(args.seed)
-    out = OutputFolder(args.out, inputs=[Path(args.edges)])
+    walks = [f"{view}.walks.tsv" for view in ("local", "far")] if args.keep_walks else []
+    out = OutputFolder(
+        args.out,
+        inputs=[Path(args.edges)] + ([Path(args.config)] if args.config else []),
+        command="embed",
+        expected=["local.csv", "far.csv", "summary.json", *walks],
+    )
     net = _load(args)
     if net.graph.number_of_edges() == 0:
         raise InputError("the network has no ties; nothing to embed.", path=str(args.edges))

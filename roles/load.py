@@ -54,6 +54,7 @@ __all__ = [
     "NodeTable",
     "load_edges",
     "load_nodes",
+    "check_group_column",
     "MAX_TEXT_BYTES",
     "MAX_GRAPHML_BYTES",
     "MAX_JSON_BYTES",
@@ -1083,3 +1084,51 @@ def load_nodes(path: str | Path, network: LoadedNetwork) -> NodeTable:
         path=shown,
         sha256=digest,
     )
+
+
+def check_group_column(table: NodeTable | None, column: str) -> None:
+    """Refuse a ``--group-by`` column that is absent, or blank for every member.
+
+    Called before the analysis, so that the mistake costs seconds, not the whole run.
+
+    Parameters
+    ----------
+    table : NodeTable or None
+        The nodes file read with :func:`load_nodes`; ``None`` when none was given.
+    column : str
+        The column holding the formal groups.
+
+    Raises
+    ------
+    InputError
+        When there is no nodes file, no such column, or no member with a value in it.
+
+    Examples
+    --------
+    >>> t = NodeTable({"Ana": {"team": " "}}, ["team"], [], [], path="people.csv")
+    >>> check_group_column(t, "team")
+    Traceback (most recent call last):
+    ...
+    roles.errors.InputError: people.csv: the column 'team' is blank for every member, ...
+    """
+    if table is None:
+        raise InputError(
+            f"--group-by {column!r} needs a nodes file holding that column; give it with "
+            "--nodes (a 'node' column plus the group column)."
+        )
+    index = {name: i for i, name in enumerate(table.columns)}
+    if column not in index:
+        close = difflib.get_close_matches(column, table.columns, n=1, cutoff=0.6)
+        hint = f" Did you mean {close[0]!r}?" if close else ""
+        raise InputError(
+            f"the nodes file has no column {column!r} to group by; its columns are "
+            f"{_found_columns(index) or 'none but node'}.{hint}",
+            path=table.path,
+        )
+    if not any(attrs.get(column, "").strip() for attrs in table.attributes.values()):
+        raise InputError(
+            f"the column {column!r} is blank for every member, so there are no formal "
+            "groups to compare with the communities. Fill it in, or choose another "
+            "column with --group-by.",
+            path=table.path,
+        )

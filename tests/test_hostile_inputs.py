@@ -545,6 +545,29 @@ def test_config_not_utf8(tmp_path):
     config_refused(tmp_path, b"seed = 3 # \xe9\n", "not UTF-8")
 
 
+@pytest.mark.parametrize(
+    ("text", "words"),
+    [
+        # 100,000 nested arrays: tomllib recurses once per level (RecursionError).
+        ("x = " + "[" * 100_000 + "]" * 100_000 + "\n", ["nested too deeply"]),
+        ("seed = " + "{a = " * 50_000 + "1" + "}" * 50_000 + "\n", ["nested too deeply"]),
+        # Parsed, but too deep to print in a message: the value is not shown.
+        ("walks = " + "[" * 300 + "]" * 300 + "\n", ["[walks] must be a table"]),
+        ("seed = '" + "x" * 100_000 + "'\n", ["'seed'", "..."]),
+    ],
+    ids=["deep-array", "deep-table", "deep-section", "long-value"],
+)
+def test_config_that_cannot_be_parsed_gives_one_line(tmp_path, text, words):
+    err = config_refused(tmp_path, text, *words)
+    assert len(str(err)) < 400  # the value is cut, not copied into the message
+
+
+def test_config_path_too_long(tmp_path):
+    for path in (tmp_path / ("c" * 256 + ".toml"), tmp_path.joinpath(*["d" * 250] * 17)):
+        with pytest.raises(ConfigError, match="cannot be read .File name too long"):
+            load_config(path)
+
+
 def test_config_valid_file_accepted(tmp_path):
     path = write(tmp_path, "c.toml", "seed = 7\n[views.local]\nq = 4\n[walks]\nwalk_length = 20\n")
     cfg = load_config(path)

@@ -45,6 +45,7 @@ from typing import Any
 import defusedxml
 import defusedxml.ElementTree as _SafeET
 import networkx as nx
+import numpy as np
 from networkx.readwrite.graphml import GraphMLReader
 
 from .errors import InputError
@@ -77,6 +78,12 @@ _BAD_TEXT = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f\ufffe\uffff]")
 _BAD_NAME = re.compile("[\x00-\x1f\x7f-\x9f\ud800-\udfff\ufffe\uffff]")
 # The same without NUL, to scan names joined by NUL (text with NUL is refused earlier).
 _BAD_NAME_JOINED = re.compile("[\x01-\x1f\x7f-\x9f\ud800-\udfff\ufffe\uffff]")
+
+# Ties are stored as 32-bit floats (graph.CSRGraph): a positive weight must lie between
+# the smallest normal and the largest finite float32, or it would become 0 (or lose its
+# precision) or infinity there.
+_WEIGHT_MIN = float(np.finfo(np.float32).tiny)  # 1.1754944e-38
+_WEIGHT_MAX = float(np.finfo(np.float32).max)  # 3.4028235e+38
 
 # First bytes of common non-text files people export by mistake.
 _SIGNATURES = [
@@ -167,7 +174,18 @@ def _show(value: str, limit: int = 40) -> str:
 
 
 def _check_file(path: str | Path, what: str) -> Path:
-    p = Path(path)
+    try:
+        return _check_file_at(Path(path), what)
+    except OSError as exc:  # a name over 255 bytes, a path over 4,095
+        raise InputError(
+            f"the path of the {what} file cannot be used ({exc.strerror or exc}). Check it; "
+            "a file name may have at most 255 bytes and a whole path 4,095.",
+            path=_show(str(path), 120),
+        ) from None
+
+
+def _check_file_at(p: Path, what: str) -> Path:
+    path = p
     if p.is_dir():
         raise InputError(
             f"this is a folder, not a file. Give the {what} file itself "
@@ -409,6 +427,30 @@ def _weight_problem(value: str, column: str) -> str:
     )
 
 
+def _weight_range_problem(value: str, column: str) -> str | None:
+    """What is wrong with a finite weight of 0 or more that 32-bit floats cannot hold."""
+    x = float(value)
+    if 0.0 < x < _WEIGHT_MIN:
+        return (
+            f"the {column!r} value {_show(value)} is smaller than {_WEIGHT_MIN:.2g}, the "
+            "smallest tie strength the tool stores (as a 32-bit number); it would become 0. "
+            "Multiply all weights by the same factor (say 1e30), which keeps every "
+            "proportion between ties, or write 0 for no tie."
+        )
+    if x > _WEIGHT_MAX:
+        return _too_large(value, column)
+    return None
+
+
+def _too_large(value: str, column: str, summed: bool = False) -> str:
+    what = "repeated rows of this tie add up to" if summed else f"the {column!r} value is"
+    return (
+        f"{what} {_show(value)}, more than {_WEIGHT_MAX:.3g}, the largest tie strength "
+        "the tool stores (as a 32-bit number). Divide all weights by the same factor "
+        "(say 1e30), which keeps every proportion between ties."
+    )
+
+
 def _name_problem(name: str) -> str | None:
     m = _BAD_NAME.search(name)
     if m is None:
@@ -584,6 +626,9 @@ def _load_delimited(
                     raise InputError(
                         _weight_problem(cell, header[wi].strip()), path=path, line=line
                     )
+                if not (w == 0.0 or _WEIGHT_MIN <= w <= _WEIGHT_MAX):
+                    problem = _weight_range_problem(cell, header[wi].strip())
+                    raise InputError(problem or "", path=path, line=line)
             names[sa] = None
             names[sb] = None
             if sa == sb:
@@ -596,6 +641,12 @@ def _load_delimited(
             else:
                 edges[key] = old + w
                 merged += 1
+                if old + w > _WEIGHT_MAX:
+                    raise InputError(
+                        _too_large(f"{old + w:.4g}", header[wi].strip() if wi else "", True),
+                        path=path,
+                        line=line,
+                    )
     except csv.Error as exc:
         raise _quoting_error(exc, path, prev + 1) from None
 
@@ -848,9 +899,12 @@ def _from_parsed(
                 )
             raw = d[weight]
             w = _number(raw)
+            shown = raw if isinstance(raw, str) else json.dumps(raw, default=str)
             if not 0.0 <= w < math.inf:
-                shown = raw if isinstance(raw, str) else json.dumps(raw, default=str)
                 problem = _weight_problem(shown, str(weight))
+                raise InputError(f"tie {_show(a)} - {_show(b)}: {problem}", path=path)
+            if not (w == 0.0 or _WEIGHT_MIN <= w <= _WEIGHT_MAX):
+                problem = _weight_range_problem(repr(w), str(weight)) or ""
                 raise InputError(f"tie {_show(a)} - {_show(b)}: {problem}", path=path)
         if a == b:
             loops += 1
@@ -862,6 +916,9 @@ def _from_parsed(
         else:
             edges[key] = old + w
             merged += 1
+            if old + w > _WEIGHT_MAX:
+                problem = _too_large(f"{old + w:.4g}", str(weight), True)
+                raise InputError(f"tie {_show(a)} - {_show(b)}: {problem}", path=path)
     counts = {
         "rows_read": rows,
         "blank_rows_skipped": 0,

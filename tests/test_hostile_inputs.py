@@ -13,6 +13,7 @@ import tempfile
 from pathlib import Path
 
 import networkx as nx
+import numpy as np
 import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
@@ -115,6 +116,37 @@ def test_bad_weights(tmp_path, weight, words):
     cell = f'"{weight}"' if "," in weight else weight
     path = write(tmp_path, "w.csv", f"source,target,weight\nAna,Ben,1\nBen,Cai,{cell}\n")
     refused(path, 3, *words)
+
+
+# The largest finite float32 is (2 - 2**-23) * 2**127 = 3.4028235e38 and the smallest
+# normal one 2**-126 = 1.1754944e-38 (IEEE 754-2008, binary32); ties are stored as float32.
+@pytest.mark.parametrize(
+    ("rows", "line", "words"),
+    [
+        ("Ana,Ben,1e39\n", 2, ["'1e39'", "more than 3.4e+38", "Divide all weights"]),
+        ("Ana,Ben,1e-46\n", 2, ["'1e-46'", "smaller than 1.2e-38", "would become 0"]),
+        ("Ana,Ben,1e-39\n", 2, ["smaller than 1.2e-38"]),  # float32 subnormal: imprecise
+        ("Ana,Ben,3e38\nBen,Cai,1\nBen,Ana,3e38\n", 4, ["add up to '6e+38'"]),
+    ],
+    ids=["1e39", "1e-46", "subnormal", "duplicates"],
+)
+def test_weights_outside_float32_refused_with_line(tmp_path, rows, line, words):
+    refused(write(tmp_path, "w.csv", "source,target,weight\n" + rows), line, *words)
+
+
+def test_weights_at_the_float32_limits_accepted(tmp_path):
+    from roles.graph import to_csr
+
+    text = "source,target,weight\nAna,Ben,3.4028234e38\nBen,Cai,1.1754944e-38\n"
+    csr = to_csr(load_edges(write(tmp_path, "w.csv", text)).graph)
+    assert np.all(np.isfinite(csr.weights)) and np.all(csr.weights > 0)
+
+
+def test_json_weight_outside_float32_refused(tmp_path):
+    for literal, word in (("1e39", "more than"), ("1e-46", "smaller than")):
+        text = '{"nodes": [{"id": "a"}, {"id": "b"}], "edges": [{"source": "a", "target": "b",'
+        text += f' "weight": {literal}}}]}}'
+        refused(write(tmp_path, "j.json", text), None, "'a' - 'b'", word)
 
 
 def test_all_weights_zero(tmp_path):
@@ -782,3 +814,9 @@ def test_valid_tables_match_an_independent_reading(ties, directed):
     got = {(u, v) if directed else tuple(sorted((u, v))): w for u, v, w in g.edges(data="weight")}
     assert got == expected
     assert set(g) == {n for a, b, _ in ties for n in (a, b)}
+
+
+def test_input_path_too_long(tmp_path):
+    for path in (tmp_path / ("e" * 256 + ".csv"), tmp_path.joinpath(*["d" * 250] * 17)):
+        with pytest.raises(InputError, match="cannot be used .File name too long"):
+            load_edges(path)

@@ -16,6 +16,7 @@ import networkx as nx
 from .config import load_config
 from .errors import InputError
 from .load import LoadedNetwork, check_group_column, load_edges, load_nodes
+from .names import shown_name
 from .output import OutputFolder
 from .progress import StageBar
 
@@ -39,12 +40,15 @@ def _load(args: argparse.Namespace) -> LoadedNetwork:
 
 
 def _source_info(net: LoadedNetwork) -> dict[str, Any]:
-    return {
+    info = {
         "file": Path(net.path).name,
         "sha256": net.sha256,
         "format": net.format,
         "counts": dict(net.counts),
     }
+    if net.lookalikes:
+        info["lookalike_example"] = [shown_name(n) for n in net.lookalikes[0]]
+    return info
 
 
 def pseudonymize(graph: nx.Graph, prefix: str = "M") -> tuple[nx.Graph, dict[str, str]]:
@@ -112,6 +116,9 @@ def report(args: argparse.Namespace) -> None:
         source["nodes_file"] = Path(args.nodes).name
         source["nodes_only_in_nodes_file"] = len(table.extra_nodes)
         source["nodes_missing_from_nodes_file"] = len(table.missing_nodes)
+        source["nodes_lookalike_names"] = table.counts["lookalike_names"]
+        if table.lookalikes:
+            source["nodes_lookalike_example"] = [shown_name(n) for n in table.lookalikes[0]]
     key = None
     if args.pseudonymize:
         prefix = {"organisation": "P", "supply": "F"}.get(args.kind, "M")
@@ -120,6 +127,8 @@ def report(args: argparse.Namespace) -> None:
             back = {v: k for k, v in key.items()}
             attributes = {back[n]: a for n, a in attributes.items() if n in back}
         source["file"] = "(name withheld)"
+        source.pop("lookalike_example", None)  # names, which the codes replace
+        source.pop("nodes_lookalike_example", None)
     bar = StageBar() if not args.quiet else None
     result = run(
         graph,

@@ -49,6 +49,7 @@ import numpy as np
 from networkx.readwrite.graphml import GraphMLReader
 
 from .errors import InputError
+from .names import lookalike_groups, nfc, nfc_changes, skeleton
 
 __all__ = [
     "LoadedNetwork",
@@ -115,10 +116,15 @@ class LoadedNetwork:
         ``rows_read`` (data rows, or edge entries in GraphML/JSON), ``blank_rows_skipped``,
         ``self_loops_dropped``, ``duplicate_edges_merged`` (rows folded into an earlier
         row of the same tie; weights summed), ``zero_weight_edges_dropped``,
-        ``names_trimmed``, ``columns_ignored``, ``nodes``, ``edges``.
+        ``names_trimmed``, ``columns_ignored``, ``names_normalised`` (distinct names
+        written in another Unicode form than NFC, merged with their NFC form),
+        ``lookalike_names`` (names that differ from another only by invisible characters
+        or compatibility forms, see :mod:`roles.names`), ``nodes``, ``edges``.
     weight_column : str or None
         The column (or edge attribute) the weights came from; ``None`` when every tie
         counts 1.
+    lookalikes : tuple of tuple of str
+        The groups of look-alike names, in order of appearance.
     """
 
     graph: nx.Graph
@@ -127,6 +133,7 @@ class LoadedNetwork:
     format: str
     counts: dict[str, int]
     weight_column: str | None = None
+    lookalikes: tuple[tuple[str, ...], ...] = ()
 
 
 @dataclass(frozen=True, eq=False)
@@ -147,11 +154,15 @@ class NodeTable:
     counts : dict of str to int
         ``rows_read``, ``blank_rows_skipped``, ``names_trimmed``, ``short_rows_filled``
         (rows with fewer cells than the header; the missing trailing values are ``""``),
-        ``extra_nodes``, ``missing_nodes``.
+        ``extra_nodes``, ``missing_nodes``, ``names_normalised`` (names written in
+        another Unicode form than NFC), ``lookalike_names`` (names of the nodes file,
+        absent from the network, that look like a network member's name).
     path : str
         The file as given.
     sha256 : str
         Hex SHA-256 of the file's bytes.
+    lookalikes : tuple of tuple of str
+        Pairs (name in the nodes file, look-alike name in the network).
     """
 
     attributes: dict[str, dict[str, str]]
@@ -161,6 +172,7 @@ class NodeTable:
     counts: dict[str, int] = field(default_factory=dict)
     path: str = ""
     sha256: str = ""
+    lookalikes: tuple[tuple[str, ...], ...] = ()
 
 
 # --------------------------------------------------------------------------- files
@@ -359,6 +371,8 @@ def _open_table(text: str, path: str, suffix: str) -> tuple[Any, list[str], str,
             if any(cell.strip() for cell in header):
                 return reader, header, delimiter, reader.line_num
     except csv.Error as exc:
+        if "field larger than field limit" in str(exc):
+            raise _quoting_error(exc, path, 1) from None
         raise InputError(
             f'the header cannot be read: {exc}. Check the quote marks (") in the first line.',
             path=path,
@@ -516,6 +530,14 @@ def _width_problem(cells: int, width: int, delimiter: str, first: int, last: int
 
 
 def _quoting_error(exc: csv.Error, path: str, line: int) -> InputError:
+    if "field larger than field limit" in str(exc):
+        return InputError(
+            f"a name or value is longer than {csv.field_size_limit():,} characters, the "
+            "most one cell may hold (name too long). Shorten it; if the file holds no such "
+            'name, a quote mark (") opened here and never closed has run on.',
+            path=path,
+            line=line,
+        )
     return InputError(
         f'the quoting is broken ({exc}). A quote mark (") opened in the row starting '
         "here is not closed properly; a quote inside a quoted value is written twice "
@@ -657,6 +679,13 @@ def _load_delimited(
             line=header_line,
         )
     _check_names(names, text, delimiter, [si, ti], path, header_line)
+    changed = nfc_changes(names)
+    if changed:
+        names, edges, more_loops, more_merged = _merge_normalised(
+            names, edges, changed, directed, path
+        )
+        loops += more_loops
+        merged += more_merged
     counts = {
         "rows_read": rows,
         "blank_rows_skipped": blank,
@@ -664,11 +693,42 @@ def _load_delimited(
         "duplicate_edges_merged": merged,
         "names_trimmed": trimmed,
         "columns_ignored": columns_ignored,
+        "names_normalised": len(changed),
     }
     fmt = "tsv" if delimiter == "\t" else "csv"
     wcol = header[wi].strip() if wi is not None else None
     graph = _build_graph(names, edges, directed, counts, path)
     return graph, fmt, counts, wcol
+
+
+def _merge_normalised(
+    names: dict[str, None],
+    edges: dict[tuple[str, str], float],
+    changed: dict[str, str],
+    directed: bool,
+    path: str,
+) -> tuple[dict[str, None], dict[tuple[str, str], float], int, int]:
+    """Names and ties with every name in NFC: ties between two forms of one name merge
+    (weights added), a tie between two forms of the same name becomes a self-loop."""
+    new_names = dict.fromkeys(changed.get(n, n) for n in names)
+    new_edges: dict[tuple[str, str], float] = {}
+    loops = merged = 0
+    for (a, b), w in edges.items():
+        a, b = changed.get(a, a), changed.get(b, b)
+        if a == b:
+            loops += 1
+            continue
+        key = (a, b) if directed or a < b else (b, a)
+        old = new_edges.get(key)
+        if old is None:
+            new_edges[key] = w
+            continue
+        new_edges[key] = old + w
+        merged += 1
+        if old + w > _WEIGHT_MAX:
+            problem = _too_large(f"{old + w:.4g}", "weight", True)
+            raise InputError(f"tie {_show(a)} - {_show(b)}: {problem}", path=path)
+    return new_names, new_edges, loops, merged
 
 
 def _build_graph(
@@ -699,6 +759,7 @@ def _build_graph(
     graph: nx.Graph = nx.DiGraph() if directed else nx.Graph()
     graph.add_nodes_from(names)
     graph.add_weighted_edges_from(kept, weight="weight")
+    counts["lookalike_names"] = sum(len(g) for g in lookalike_groups(graph))
     counts["nodes"] = graph.number_of_nodes()
     counts["edges"] = graph.number_of_edges()
     return graph
@@ -879,6 +940,10 @@ def _from_parsed(
                 "and free of tabs and control characters.",
                 path=path,
             )
+    changed = nfc_changes(names)
+    if changed:
+        names = list(dict.fromkeys(changed.get(n, n) for n in names))
+        ties = [(changed.get(a, a), changed.get(b, b), d) for a, b, d in ties]
     has_weight = bool(weight) and any(weight in d for _, _, d in ties)
     if weight and weight != "weight" and not has_weight:
         raise InputError(
@@ -926,6 +991,7 @@ def _from_parsed(
         "duplicate_edges_merged": merged,
         "names_trimmed": 0,
         "columns_ignored": 0,
+        "names_normalised": len(changed),
     }
     graph = _build_graph(names, edges, directed, counts, path)
     return graph, counts, (weight if has_weight else None)
@@ -1009,7 +1075,13 @@ def load_edges(
         graph, counts, wcol = _from_parsed(parsed, shown, directed=directed, weight=weight)
         fmt = kind
     return LoadedNetwork(
-        graph=graph, path=shown, sha256=digest, format=fmt, counts=counts, weight_column=wcol
+        graph=graph,
+        path=shown,
+        sha256=digest,
+        format=fmt,
+        counts=counts,
+        weight_column=wcol,
+        lookalikes=tuple(lookalike_groups(graph)) if counts["lookalike_names"] else (),
     )
 
 
@@ -1068,7 +1140,7 @@ def load_nodes(path: str | Path, network: LoadedNetwork) -> NodeTable:
     columns = [(name, i) for name, i in index.items() if i != ni]
     attributes: dict[str, dict[str, str]] = {}
     first_line: dict[str, int] = {}
-    blank = trimmed = short = 0
+    blank = trimmed = short = normalised = 0
     prev = line = header_line
     try:
         for row in reader:
@@ -1092,6 +1164,9 @@ def load_nodes(path: str | Path, network: LoadedNetwork) -> NodeTable:
             raw = row[ni]
             name = raw.strip()
             trimmed += len(name) != len(raw)
+            normal = nfc(name)
+            normalised += normal != name
+            name = normal
             if not name:
                 raise InputError(
                     "the node name is empty. Fill it in or delete the row.", path=shown, line=line
@@ -1124,6 +1199,7 @@ def load_nodes(path: str | Path, network: LoadedNetwork) -> NodeTable:
     graph = network.graph
     extra = [n for n in attributes if n not in graph]
     missing = [str(n) for n in graph if n not in attributes]
+    lookalikes = _lookalikes_across(extra, missing)
     counts = {
         "rows_read": len(attributes),
         "blank_rows_skipped": blank,
@@ -1131,6 +1207,8 @@ def load_nodes(path: str | Path, network: LoadedNetwork) -> NodeTable:
         "short_rows_filled": short,
         "extra_nodes": len(extra),
         "missing_nodes": len(missing),
+        "names_normalised": normalised,
+        "lookalike_names": len(lookalikes),
     }
     return NodeTable(
         attributes=attributes,
@@ -1140,7 +1218,19 @@ def load_nodes(path: str | Path, network: LoadedNetwork) -> NodeTable:
         counts=counts,
         path=shown,
         sha256=digest,
+        lookalikes=tuple(lookalikes),
     )
+
+
+def _lookalikes_across(extra: list[str], missing: list[str]) -> list[tuple[str, ...]]:
+    """(nodes-file name, network name) pairs that look alike but differ: a member the
+    nodes file would otherwise add as a phantom without ties."""
+    if not extra or not missing:
+        return []
+    by_look: dict[str, str] = {}
+    for name in missing:
+        by_look.setdefault(skeleton(name), name)
+    return [(n, by_look[skeleton(n)]) for n in extra if skeleton(n) in by_look]
 
 
 def check_group_column(table: NodeTable | None, column: str) -> None:

@@ -253,3 +253,30 @@ def test_report_then_embed_leaves_one_commands_files(tmp_path):
     assert names == [MANIFEST, "far.csv", "local.csv", "notes.txt", "summary.json"]
     assert "views" in json.loads((tmp_path / "out" / "summary.json").read_text())
     assert sorted(p.name for p in tmp_path.iterdir()) == ["e.csv", "out"]
+
+
+@pytest.mark.slow
+def test_lookalike_and_decomposed_names_reported(tmp_path):
+    # Zachary's karate club (networkx) with member 0 named "Zoë" written decomposed
+    # (e + U+0308) in the edge list and composed (U+00EB) in the nodes file, and one
+    # extra member whose name differs from "m1" by a zero-width space (U+200B).
+    def name(i: int) -> str:
+        return "Zoe\u0308" if i == 0 else f"m{i}"
+
+    g = nx.karate_club_graph()
+    rows = "".join(f"{name(u)},{name(v)}\n" for u, v in g.edges()) + "m1\u200b,m2\n"
+    (tmp_path / "e.csv").write_text("source,target\n" + rows, encoding="utf-8")
+    composed = {0: "Zo\u00eb"}
+    people = "".join(f"{composed.get(i, f'm{i}')},{g.nodes[i]['club']}\n" for i in g)
+    (tmp_path / "n.csv").write_text("node,club\n" + people, encoding="utf-8")
+    done = roles("report", "e.csv", "--nodes", "n.csv", "--out", "out", "--quiet", cwd=tmp_path)
+    assert done.returncode == 0, done.stderr
+    summary = json.loads((tmp_path / "out" / "summary.json").read_text(encoding="utf-8"))
+    source = summary["input"]
+    assert summary["nodes"] == 35  # 34 members and the look-alike; no phantom "Zoë"
+    assert source["nodes_only_in_nodes_file"] == 0
+    assert source["counts"]["names_normalised"] == 1
+    assert source["counts"]["lookalike_names"] == 2
+    assert source["lookalike_example"] == ["'m1'", "'m1<U+200B>'"]
+    html = (tmp_path / "out" / "report.html").read_text(encoding="utf-8")
+    assert "for example &#39;m1&#39; and &#39;m1&lt;U+200B&gt;&#39;" in html

@@ -826,3 +826,12 @@ def test_input_path_too_long(tmp_path):
     for path in (tmp_path / ("e" * 256 + ".csv"), tmp_path.joinpath(*["d" * 250] * 17)):
         with pytest.raises(InputError, match="cannot be used .File name too long"):
             load_edges(path)
+
+
+def test_run_refuses_a_blank_group_column_before_the_work():
+    from roles.pipeline import run
+
+    g = nx.karate_club_graph()  # Zachary (1977), bundled with networkx
+    blank = {n: {"team": " "} for n in g}
+    with pytest.raises(InputError, match="'team' is blank for every member"):
+        run(g, attributes=blank, group_by="team")

@@ -617,8 +617,9 @@ def _refuse_read_only(folder: Path, what: str) -> None:
         read_only = read_only or bool(os.statvfs(folder).f_flag & os.ST_RDONLY)
     if read_only:
         raise ConfigError(
-            f"{what} {_shown(folder)} is read-only, and the results are not written into a "
-            "read-only folder. Make it writable, or choose another output folder."
+            f"{what} {_shown(folder)} is read-only (or not yours to write), and the results "
+            "are not written into a read-only folder. Make it writable, or choose another "
+            "output folder."
         )
 
 

@@ -61,6 +61,17 @@ CASES = {
         ["--config", "c.toml"],
         "nested too deeply",
     ),
+    "weight past float32": ({"e.csv": "source,target,weight\nAna,Ben,1e39\n"}, [], "line 2"),
+    "weight that becomes 0": (
+        {"e.csv": "source,target,weight\nAna,Ben,1\nBen,Cai,1e-46\n"},
+        [],
+        "e.csv, line 3: the 'weight' value '1e-46' is smaller than 1.2e-38",
+    ),
+    "name too long": (
+        {"e.csv": "source,target\nAna,Ben\n" + "x" * 131_073 + ",Ana\n"},
+        [],
+        "e.csv, line 3: a name or value is longer than 131,072 characters",
+    ),
     "group-by without nodes": ({"e.csv": GOOD}, ["--group-by", "team"], "--nodes"),
     "group-by column missing": (
         {"e.csv": GOOD, "n.csv": "node,team\nAna,x\n"},

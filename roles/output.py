@@ -390,8 +390,9 @@ class OutputFolder:
             if not any(p.startswith(kind + ":") for p in prints):
                 others[name] = f"a {kind} now, where this tool wrote something else"
                 continue
-            if fingerprint(path) in prints:
-                earlier[name] = next(iter(prints))
+            current = fingerprint(path)
+            if current in prints:
+                earlier[name] = current
             else:
                 others[name] = "changed since this tool wrote it"
         return earlier, others

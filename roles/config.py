@@ -36,6 +36,8 @@ __all__ = [
 ]
 
 DEFAULT_SEED = 20261202
+#: Largest configuration file read: every setting together takes under 2 kB.
+MAX_CONFIG_BYTES = 1 << 20
 
 
 def _got(value: Any, limit: int = 60) -> str:
@@ -301,7 +303,15 @@ def load_config(path: str | Path | None) -> Config:
     try:
         if not p.is_file():
             raise ConfigError(f"{shown}: the configuration file does not exist or is not a file.")
-        raw = p.read_bytes()
+        size = p.stat().st_size
+        if size > MAX_CONFIG_BYTES:
+            raise ConfigError(
+                f"{shown}: the configuration file is {size:,} bytes; a configuration holds a "
+                f"few settings, at most {MAX_CONFIG_BYTES:,} bytes. Check that this is the "
+                "right file."
+            )
+        with open(p, "rb") as fh:
+            raw = fh.read(MAX_CONFIG_BYTES + 1)
     except OSError as exc:
         raise ConfigError(
             f"{shown}: the configuration file cannot be read ({exc.strerror or exc})."

@@ -595,6 +595,10 @@ def test_config_that_cannot_be_parsed_gives_one_line(tmp_path, text, words):
     assert len(str(err)) < 400  # the value is cut, not copied into the message
 
 
+def test_config_too_large(tmp_path):
+    config_refused(tmp_path, "# " + "x" * (1 << 20) + "\n", "1,048,579 bytes", "right file")
+
+
 def test_config_path_too_long(tmp_path):
     for path in (tmp_path / ("c" * 256 + ".toml"), tmp_path.joinpath(*["d" * 250] * 17)):
         with pytest.raises(ConfigError, match="cannot be read .File name too long"):

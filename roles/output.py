@@ -397,8 +397,9 @@ class OutputFolder:
                 others[name] = "changed since this tool wrote it"
         return earlier, others
 
-    def _refuse_clashes(self, names: set[str]) -> None:
-        _, others = self._classify()
+    def _refuse_clashes(self, names: set[str], others: dict[str, str] | None = None) -> None:
+        if others is None:
+            _, others = self._classify()
         clash = sorted(set(others) & names)
         if clash:
             name = clash[0]
@@ -531,7 +532,7 @@ class OutputFolder:
                 os.rename(temp, real)
             else:
                 earlier, others = self._classify()
-                self._refuse_clashes(set(new))
+                self._refuse_clashes(set(new), others)
                 os.chmod(temp, real.stat().st_mode & 0o7777)
                 if not others and self._whole_swap_allowed():
                     self._swap()

@@ -49,7 +49,7 @@ import numpy as np
 from networkx.readwrite.graphml import GraphMLReader
 
 from .errors import InputError
-from .names import lookalike_groups, nfc, nfc_changes, skeleton
+from .names import lookalike_groups, nfc, nfc_changes, shown_name, skeleton
 
 __all__ = [
     "LoadedNetwork",
@@ -465,6 +465,20 @@ def _too_large(value: str, column: str, summed: bool = False) -> str:
     )
 
 
+_INVISIBLE_NAME = (
+    "the name {} is made only of characters that print as nothing (zero-width or "
+    "format characters), so it would show as an empty name. Fill it in or delete the row."
+)
+
+
+def _invisible_name(names: Iterable[str]) -> str | None:
+    """The first name made only of invisible characters, if any."""
+    for name in names:
+        if not name.isascii() and not skeleton(name):
+            return name
+    return None
+
+
 def _name_problem(name: str) -> str | None:
     m = _BAD_NAME.search(name)
     if m is None:
@@ -679,6 +693,13 @@ def _load_delimited(
             line=header_line,
         )
     _check_names(names, text, delimiter, [si, ti], path, header_line)
+    invisible = _invisible_name(names)
+    if invisible is not None:
+        raise InputError(
+            _INVISIBLE_NAME.format(shown_name(invisible)),
+            path=path,
+            line=_first_line_of_name(text, delimiter, [si, ti], invisible, header_line),
+        )
     changed = nfc_changes(names)
     if changed:
         names, edges, more_loops, more_merged = _merge_normalised(
@@ -933,6 +954,8 @@ def _from_parsed(
     for n in names:
         if not n.strip():
             raise InputError("a node has an empty name. Give every node a name.", path=path)
+        if not skeleton(n):
+            raise InputError(_INVISIBLE_NAME.format(shown_name(n)), path=path)
         problem = _name_problem(n)
         if problem:
             raise InputError(
@@ -1179,6 +1202,8 @@ def load_nodes(path: str | Path, network: LoadedNetwork) -> NodeTable:
                     path=shown,
                     line=line,
                 )
+            if not skeleton(name):
+                raise InputError(_INVISIBLE_NAME.format(shown_name(name)), path=shown, line=line)
             if name in first_line:
                 raise InputError(
                     f"the node {_show(name)} is listed again (first at line "

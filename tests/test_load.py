@@ -414,3 +414,19 @@ def test_name_longer_than_the_csv_field_limit(tmp_path):
     with pytest.raises(InputError, match="name too long") as info:
         load_nodes(path, net)
     assert info.value.line == 3
+
+
+@pytest.mark.parametrize("name", ["\u200b", "\u200d\u200d", "\u00ad", "\ufe0f"])
+def test_name_of_invisible_characters_only_is_refused(tmp_path, name):
+    path = write(tmp_path, "i.csv", f"source,target\nAna,Ben\nBen,{name}\n")
+    with pytest.raises(InputError, match="print as nothing") as info:
+        load_edges(path)
+    assert info.value.line == 3
+    nodes = write(tmp_path, "n.csv", f"node\nAna\n{name}\n")
+    net = load_edges(write(tmp_path, "e.csv", "source,target\nAna,Ben\n"))
+    with pytest.raises(InputError, match="print as nothing") as info:
+        load_nodes(nodes, net)
+    assert info.value.line == 3
+    doc = {"nodes": [{"id": "a"}, {"id": name}], "edges": [{"source": "a", "target": name}]}
+    with pytest.raises(InputError, match="print as nothing"):
+        load_edges(write(tmp_path, "j.json", json.dumps(doc)))

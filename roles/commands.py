@@ -15,13 +15,18 @@ import networkx as nx
 
 from .config import load_config
 from .errors import InputError
-from .load import LoadedNetwork, load_edges, load_nodes
+from .load import LoadedNetwork, check_group_column, load_edges, load_nodes
+from .names import shown_name
 from .output import OutputFolder
 from .progress import StageBar
 
 __all__ = ["report", "embed", "compare", "pseudonymize"]
 
 log = logging.getLogger("roles")
+
+#: What ``roles report`` writes, checked against the output folder before the work.
+REPORT_FILES = ("report.pdf", "report.html", "nodes.csv", "summary.json", "graph.graphml")
+COMPARE_FILES = ("report.pdf", "report.html", "changes.json", "old", "new")
 
 
 def _load(args: argparse.Namespace) -> LoadedNetwork:
@@ -36,12 +41,15 @@ def _load(args: argparse.Namespace) -> LoadedNetwork:
 
 
 def _source_info(net: LoadedNetwork) -> dict[str, Any]:
-    return {
+    info = {
         "file": Path(net.path).name,
         "sha256": net.sha256,
         "format": net.format,
         "counts": dict(net.counts),
     }
+    if net.lookalikes:
+        info["lookalike_example"] = [shown_name(n) for n in net.lookalikes[0]]
+    return info
 
 
 def pseudonymize(graph: nx.Graph, prefix: str = "M") -> tuple[nx.Graph, dict[str, str]]:
@@ -99,21 +107,32 @@ def report(args: argparse.Namespace) -> None:
             "--key-file only makes sense with --pseudonymize; add it or drop --key-file."
         )
     inputs = [Path(args.edges)] + ([Path(args.nodes)] if args.nodes else [])
-    out = OutputFolder(args.out, inputs=inputs)  # refuses a bad target before the work
+    # Refuses a bad target before the work: see roles.output.
+    out = OutputFolder(
+        args.out,
+        inputs=inputs + ([Path(args.config)] if args.config else []),
+        command="report",
+        expected=REPORT_FILES,
+    )
     if args.key_file:
         _check_key_file(Path(args.key_file), inputs, Path(args.out))
     net = _load(args)
     graph = net.graph
     attributes = None
     source = _source_info(net)
-    if args.nodes:
-        table = load_nodes(args.nodes, net)
+    table = load_nodes(args.nodes, net) if args.nodes else None
+    if args.group_by:
+        check_group_column(table, args.group_by)  # before the analysis, not after it
+    if table is not None:
         graph = graph.copy()
         graph.add_nodes_from(table.extra_nodes)
         attributes = table.attributes
         source["nodes_file"] = Path(args.nodes).name
         source["nodes_only_in_nodes_file"] = len(table.extra_nodes)
         source["nodes_missing_from_nodes_file"] = len(table.missing_nodes)
+        source["nodes_lookalike_names"] = table.counts["lookalike_names"]
+        if table.lookalikes:
+            source["nodes_lookalike_example"] = [shown_name(n) for n in table.lookalikes[0]]
     remove = _removed_members(args, graph)  # unknown names stop the run before any work
     key = None
     if args.pseudonymize:
@@ -126,6 +145,8 @@ def report(args: argparse.Namespace) -> None:
         if remove:
             codes = {name: code for code, name in key.items()}
             remove = [codes[str(v)] for v in remove]
+        source.pop("lookalike_example", None)  # names, which the codes replace
+        source.pop("nodes_lookalike_example", None)
     bar = StageBar() if not args.quiet else None
     result = run(
         graph,
@@ -166,7 +187,13 @@ def embed(args: argparse.Namespace) -> None:
     from .graph import to_csr
 
     config = load_config(args.config).with_seed(args.seed)
-    out = OutputFolder(args.out, inputs=[Path(args.edges)])
+    walks = [f"{view}.walks.tsv" for view in ("local", "far")] if args.keep_walks else []
+    out = OutputFolder(
+        args.out,
+        inputs=[Path(args.edges)] + ([Path(args.config)] if args.config else []),
+        command="embed",
+        expected=["local.csv", "far.csv", "summary.json", *walks],
+    )
     net = _load(args)
     if net.graph.number_of_edges() == 0:
         raise InputError("the network has no ties; nothing to embed.", path=str(args.edges))
@@ -224,7 +251,12 @@ def compare(args: argparse.Namespace) -> None:
         )
     node_files = nodes * 2 if len(nodes) == 1 else nodes or [None, None]
     inputs = [Path(args.old), Path(args.new)] + [Path(n) for n in nodes]
-    out = OutputFolder(args.out, inputs=inputs)
+    out = OutputFolder(
+        args.out,
+        inputs=inputs + ([Path(args.config)] if args.config else []),
+        command="compare",
+        expected=COMPARE_FILES,
+    )
     if args.key_file:
         _check_key_file(Path(args.key_file), inputs, Path(args.out))
     snaps = [_snapshot(e, n, args) for e, n in zip((args.old, args.new), node_files, strict=True)]

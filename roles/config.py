@@ -36,18 +36,29 @@ __all__ = [
 ]
 
 DEFAULT_SEED = 20261202
+#: Largest configuration file read: every setting together takes under 2 kB.
+MAX_CONFIG_BYTES = 1 << 20
+
+
+def _got(value: Any, limit: int = 60) -> str:
+    """A configuration value as quoted in a message: cut when long, never failing."""
+    try:
+        text = repr(value)
+    except RecursionError:  # a value nested too deeply to print
+        text = "a value nested too deeply to show"
+    return text if len(text) <= limit else text[:limit] + "..."
 
 
 def _check_int(section: str, name: str, value: Any, low: int, high: int) -> int:
     if isinstance(value, bool) or not isinstance(value, int):
         raise ConfigError(
             f"The '{name}' parameter of {section} must be a whole number from {low} to {high}. "
-            f"Got {value!r} instead."
+            f"Got {_got(value)} instead."
         )
     if not low <= value <= high:
         raise ConfigError(
             f"The '{name}' parameter of {section} must be a whole number from {low} to {high}. "
-            f"Got {value!r} instead."
+            f"Got {_got(value)} instead."
         )
     return value
 
@@ -56,13 +67,13 @@ def _check_float(section: str, name: str, value: Any, low: float, high: float) -
     if isinstance(value, bool) or not isinstance(value, (int, float)):
         raise ConfigError(
             f"The '{name}' parameter of {section} must be a number greater than {low:g} "
-            f"and at most {high:g}. Got {value!r} instead."
+            f"and at most {high:g}. Got {_got(value)} instead."
         )
     v = float(value)
     if not math.isfinite(v) or not (low < v <= high):
         raise ConfigError(
             f"The '{name}' parameter of {section} must be a number greater than {low:g} "
-            f"and at most {high:g}. Got {value!r} instead."
+            f"and at most {high:g}. Got {_got(value)} instead."
         )
     return v
 
@@ -154,7 +165,7 @@ class ClusterConfig:
         if 0 < self.fit_limit < 100:
             raise ConfigError(
                 "The 'fit_limit' parameter of [cluster] must be 0 (fit every member) or a "
-                f"whole number of at least 100. Got {self.fit_limit!r} instead."
+                f"whole number of at least 100. Got {_got(self.fit_limit)} instead."
             )
 
 
@@ -172,7 +183,7 @@ class ConfidenceConfig:
         if not isinstance(self.scale_down, bool):
             raise ConfigError(
                 "The 'scale_down' parameter of [confidence] must be true or false. "
-                f"Got {self.scale_down!r} instead."
+                f"Got {_got(self.scale_down)} instead."
             )
 
 
@@ -229,7 +240,7 @@ def _fields(cls: type) -> list[str]:
 
 def _section(data: Any, label: str, cls: type, **extra: Any) -> Any:
     if not isinstance(data, Mapping):
-        raise ConfigError(f"{label} must be a table of keys. Got {data!r} instead.")
+        raise ConfigError(f"{label} must be a table of keys. Got {_got(data)} instead.")
     allowed = _fields(cls)
     unknown = sorted(set(data) - set(allowed))
     if unknown:
@@ -260,7 +271,7 @@ def config_from_mapping(data: Mapping[str, Any]) -> Config:
     if "views" in data:
         views = data["views"]
         if not isinstance(views, Mapping):
-            raise ConfigError(f"[views] must be a table of keys. Got {views!r} instead.")
+            raise ConfigError(f"[views] must be a table of keys. Got {_got(views)} instead.")
         unknown = sorted(set(views) - {"local", "far"})
         if unknown:
             raise ConfigError(f"Unknown view {unknown[0]!r} in [views]. Allowed views: local, far.")
@@ -288,15 +299,45 @@ def load_config(path: str | Path | None) -> Config:
     if path is None:
         return Config()
     p = Path(path)
-    if not p.is_file():
-        raise ConfigError(f"{p}: the configuration file does not exist or is not a file.")
+    shown = str(p) if len(str(p)) <= 120 else str(p)[:60] + "..." + str(p)[-60:]
     try:
-        data = tomllib.loads(p.read_text(encoding="utf-8-sig"))
+        if not p.is_file():
+            raise ConfigError(f"{shown}: the configuration file does not exist or is not a file.")
+        size = p.stat().st_size
+        if size > MAX_CONFIG_BYTES:
+            raise ConfigError(
+                f"{shown}: the configuration file is {size:,} bytes; a configuration holds a "
+                f"few settings, at most {MAX_CONFIG_BYTES:,} bytes. Check that this is the "
+                "right file."
+            )
+        with open(p, "rb") as fh:
+            raw = fh.read(MAX_CONFIG_BYTES + 1)
+    except OSError as exc:
+        raise ConfigError(
+            f"{shown}: the configuration file cannot be read ({exc.strerror or exc})."
+        ) from None
+    try:
+        data = tomllib.loads(raw.decode("utf-8-sig"))
     except UnicodeDecodeError as exc:
-        raise ConfigError(f"{p}: the configuration file is not UTF-8 text ({exc}).") from None
+        raise ConfigError(f"{shown}: the configuration file is not UTF-8 text ({exc}).") from None
     except tomllib.TOMLDecodeError as exc:
-        raise ConfigError(f"{p}: the configuration is not valid TOML: {exc}.") from None
+        raise ConfigError(f"{shown}: the configuration is not valid TOML: {exc}.") from None
+    except RecursionError:
+        raise ConfigError(
+            f"{shown}: the configuration cannot be read: its arrays or tables are nested too "
+            "deeply. No setting needs more than two levels; remove the nesting."
+        ) from None
+    except Exception as exc:  # whatever else a parser can raise on hostile text
+        raise ConfigError(
+            f"{shown}: the configuration cannot be read ({type(exc).__name__}). "
+            "Check that it is a TOML file as described in the README."
+        ) from None
     try:
         return config_from_mapping(data)
     except ConfigError as exc:
-        raise ConfigError(f"{p}: {exc}") from None
+        raise ConfigError(f"{shown}: {exc}") from None
+    except (TypeError, ValueError, RecursionError) as exc:
+        raise ConfigError(
+            f"{shown}: a value of the configuration has the wrong form "
+            f"({type(exc).__name__}: {_got(str(exc))})."
+        ) from None

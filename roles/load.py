@@ -45,15 +45,18 @@ from typing import Any
 import defusedxml
 import defusedxml.ElementTree as _SafeET
 import networkx as nx
+import numpy as np
 from networkx.readwrite.graphml import GraphMLReader
 
 from .errors import InputError
+from .names import lookalike_groups, nfc, nfc_changes, shown_name, skeleton
 
 __all__ = [
     "LoadedNetwork",
     "NodeTable",
     "load_edges",
     "load_nodes",
+    "check_group_column",
     "MAX_TEXT_BYTES",
     "MAX_GRAPHML_BYTES",
     "MAX_JSON_BYTES",
@@ -76,6 +79,12 @@ _BAD_TEXT = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f\ufffe\uffff]")
 _BAD_NAME = re.compile("[\x00-\x1f\x7f-\x9f\ud800-\udfff\ufffe\uffff]")
 # The same without NUL, to scan names joined by NUL (text with NUL is refused earlier).
 _BAD_NAME_JOINED = re.compile("[\x01-\x1f\x7f-\x9f\ud800-\udfff\ufffe\uffff]")
+
+# Ties are stored as 32-bit floats (graph.CSRGraph): a positive weight must lie between
+# the smallest normal and the largest finite float32, or it would become 0 (or lose its
+# precision) or infinity there.
+_WEIGHT_MIN = float(np.finfo(np.float32).tiny)  # 1.1754944e-38
+_WEIGHT_MAX = float(np.finfo(np.float32).max)  # 3.4028235e+38
 
 # First bytes of common non-text files people export by mistake.
 _SIGNATURES = [
@@ -107,10 +116,15 @@ class LoadedNetwork:
         ``rows_read`` (data rows, or edge entries in GraphML/JSON), ``blank_rows_skipped``,
         ``self_loops_dropped``, ``duplicate_edges_merged`` (rows folded into an earlier
         row of the same tie; weights summed), ``zero_weight_edges_dropped``,
-        ``names_trimmed``, ``columns_ignored``, ``nodes``, ``edges``.
+        ``names_trimmed``, ``columns_ignored``, ``names_normalised`` (distinct names
+        written in another Unicode form than NFC, merged with their NFC form),
+        ``lookalike_names`` (names that differ from another only by invisible characters
+        or compatibility forms, see :mod:`roles.names`), ``nodes``, ``edges``.
     weight_column : str or None
         The column (or edge attribute) the weights came from; ``None`` when every tie
         counts 1.
+    lookalikes : tuple of tuple of str
+        The groups of look-alike names, in order of appearance.
     """
 
     graph: nx.Graph
@@ -119,6 +133,7 @@ class LoadedNetwork:
     format: str
     counts: dict[str, int]
     weight_column: str | None = None
+    lookalikes: tuple[tuple[str, ...], ...] = ()
 
 
 @dataclass(frozen=True, eq=False)
@@ -139,11 +154,15 @@ class NodeTable:
     counts : dict of str to int
         ``rows_read``, ``blank_rows_skipped``, ``names_trimmed``, ``short_rows_filled``
         (rows with fewer cells than the header; the missing trailing values are ``""``),
-        ``extra_nodes``, ``missing_nodes``.
+        ``extra_nodes``, ``missing_nodes``, ``names_normalised`` (names written in
+        another Unicode form than NFC), ``lookalike_names`` (names of the nodes file,
+        absent from the network, that look like a network member's name).
     path : str
         The file as given.
     sha256 : str
         Hex SHA-256 of the file's bytes.
+    lookalikes : tuple of tuple of str
+        Pairs (name in the nodes file, look-alike name in the network).
     """
 
     attributes: dict[str, dict[str, str]]
@@ -153,6 +172,7 @@ class NodeTable:
     counts: dict[str, int] = field(default_factory=dict)
     path: str = ""
     sha256: str = ""
+    lookalikes: tuple[tuple[str, ...], ...] = ()
 
 
 # --------------------------------------------------------------------------- files
@@ -166,7 +186,18 @@ def _show(value: str, limit: int = 40) -> str:
 
 
 def _check_file(path: str | Path, what: str) -> Path:
-    p = Path(path)
+    try:
+        return _check_file_at(Path(path), what)
+    except OSError as exc:  # a name over 255 bytes, a path over 4,095
+        raise InputError(
+            f"the path of the {what} file cannot be used ({exc.strerror or exc}). Check it; "
+            "a file name may have at most 255 bytes and a whole path 4,095.",
+            path=_show(str(path), 120),
+        ) from None
+
+
+def _check_file_at(p: Path, what: str) -> Path:
+    path = p
     if p.is_dir():
         raise InputError(
             f"this is a folder, not a file. Give the {what} file itself "
@@ -340,6 +371,8 @@ def _open_table(text: str, path: str, suffix: str) -> tuple[Any, list[str], str,
             if any(cell.strip() for cell in header):
                 return reader, header, delimiter, reader.line_num
     except csv.Error as exc:
+        if "field larger than field limit" in str(exc):
+            raise _quoting_error(exc, path, 1) from None
         raise InputError(
             f'the header cannot be read: {exc}. Check the quote marks (") in the first line.',
             path=path,
@@ -408,6 +441,44 @@ def _weight_problem(value: str, column: str) -> str:
     )
 
 
+def _weight_range_problem(value: str, column: str) -> str | None:
+    """What is wrong with a finite weight of 0 or more that 32-bit floats cannot hold."""
+    x = float(value)
+    if 0.0 < x < _WEIGHT_MIN:
+        return (
+            f"the {column!r} value {_show(value)} is smaller than {_WEIGHT_MIN:.2g}, the "
+            "smallest tie strength the tool stores (as a 32-bit number); it would become 0. "
+            "Multiply all weights by the same factor (say 1e30), which keeps every "
+            "proportion between ties, or write 0 for no tie."
+        )
+    if x > _WEIGHT_MAX:
+        return _too_large(value, column)
+    return None
+
+
+def _too_large(value: str, column: str, summed: bool = False) -> str:
+    what = "repeated rows of this tie add up to" if summed else f"the {column!r} value is"
+    return (
+        f"{what} {_show(value)}, more than {_WEIGHT_MAX:.3g}, the largest tie strength "
+        "the tool stores (as a 32-bit number). Divide all weights by the same factor "
+        "(say 1e30), which keeps every proportion between ties."
+    )
+
+
+_INVISIBLE_NAME = (
+    "the name {} is made only of characters that print as nothing (zero-width or "
+    "format characters), so it would show as an empty name. Fill it in or delete the row."
+)
+
+
+def _invisible_name(names: Iterable[str]) -> str | None:
+    """The first name made only of invisible characters, if any."""
+    for name in names:
+        if not name.isascii() and not skeleton(name):
+            return name
+    return None
+
+
 def _name_problem(name: str) -> str | None:
     m = _BAD_NAME.search(name)
     if m is None:
@@ -473,6 +544,14 @@ def _width_problem(cells: int, width: int, delimiter: str, first: int, last: int
 
 
 def _quoting_error(exc: csv.Error, path: str, line: int) -> InputError:
+    if "field larger than field limit" in str(exc):
+        return InputError(
+            f"a name or value is longer than {csv.field_size_limit():,} characters, the "
+            "most one cell may hold (name too long). Shorten it; if the file holds no such "
+            'name, a quote mark (") opened here and never closed has run on.',
+            path=path,
+            line=line,
+        )
     return InputError(
         f'the quoting is broken ({exc}). A quote mark (") opened in the row starting '
         "here is not closed properly; a quote inside a quoted value is written twice "
@@ -583,6 +662,9 @@ def _load_delimited(
                     raise InputError(
                         _weight_problem(cell, header[wi].strip()), path=path, line=line
                     )
+                if not (w == 0.0 or _WEIGHT_MIN <= w <= _WEIGHT_MAX):
+                    problem = _weight_range_problem(cell, header[wi].strip())
+                    raise InputError(problem or "", path=path, line=line)
             names[sa] = None
             names[sb] = None
             if sa == sb:
@@ -595,6 +677,12 @@ def _load_delimited(
             else:
                 edges[key] = old + w
                 merged += 1
+                if old + w > _WEIGHT_MAX:
+                    raise InputError(
+                        _too_large(f"{old + w:.4g}", header[wi].strip() if wi else "", True),
+                        path=path,
+                        line=line,
+                    )
     except csv.Error as exc:
         raise _quoting_error(exc, path, prev + 1) from None
 
@@ -605,6 +693,20 @@ def _load_delimited(
             line=header_line,
         )
     _check_names(names, text, delimiter, [si, ti], path, header_line)
+    invisible = _invisible_name(names)
+    if invisible is not None:
+        raise InputError(
+            _INVISIBLE_NAME.format(shown_name(invisible)),
+            path=path,
+            line=_first_line_of_name(text, delimiter, [si, ti], invisible, header_line),
+        )
+    changed = nfc_changes(names)
+    if changed:
+        names, edges, more_loops, more_merged = _merge_normalised(
+            names, edges, changed, directed, path
+        )
+        loops += more_loops
+        merged += more_merged
     counts = {
         "rows_read": rows,
         "blank_rows_skipped": blank,
@@ -612,11 +714,42 @@ def _load_delimited(
         "duplicate_edges_merged": merged,
         "names_trimmed": trimmed,
         "columns_ignored": columns_ignored,
+        "names_normalised": len(changed),
     }
     fmt = "tsv" if delimiter == "\t" else "csv"
     wcol = header[wi].strip() if wi is not None else None
     graph = _build_graph(names, edges, directed, counts, path)
     return graph, fmt, counts, wcol
+
+
+def _merge_normalised(
+    names: dict[str, None],
+    edges: dict[tuple[str, str], float],
+    changed: dict[str, str],
+    directed: bool,
+    path: str,
+) -> tuple[dict[str, None], dict[tuple[str, str], float], int, int]:
+    """Names and ties with every name in NFC: ties between two forms of one name merge
+    (weights added), a tie between two forms of the same name becomes a self-loop."""
+    new_names = dict.fromkeys(changed.get(n, n) for n in names)
+    new_edges: dict[tuple[str, str], float] = {}
+    loops = merged = 0
+    for (a, b), w in edges.items():
+        a, b = changed.get(a, a), changed.get(b, b)
+        if a == b:
+            loops += 1
+            continue
+        key = (a, b) if directed or a < b else (b, a)
+        old = new_edges.get(key)
+        if old is None:
+            new_edges[key] = w
+            continue
+        new_edges[key] = old + w
+        merged += 1
+        if old + w > _WEIGHT_MAX:
+            problem = _too_large(f"{old + w:.4g}", "weight", True)
+            raise InputError(f"tie {_show(a)} - {_show(b)}: {problem}", path=path)
+    return new_names, new_edges, loops, merged
 
 
 def _build_graph(
@@ -647,6 +780,7 @@ def _build_graph(
     graph: nx.Graph = nx.DiGraph() if directed else nx.Graph()
     graph.add_nodes_from(names)
     graph.add_weighted_edges_from(kept, weight="weight")
+    counts["lookalike_names"] = sum(len(g) for g in lookalike_groups(graph))
     counts["nodes"] = graph.number_of_nodes()
     counts["edges"] = graph.number_of_edges()
     return graph
@@ -820,6 +954,8 @@ def _from_parsed(
     for n in names:
         if not n.strip():
             raise InputError("a node has an empty name. Give every node a name.", path=path)
+        if not skeleton(n):
+            raise InputError(_INVISIBLE_NAME.format(shown_name(n)), path=path)
         problem = _name_problem(n)
         if problem:
             raise InputError(
@@ -827,6 +963,10 @@ def _from_parsed(
                 "and free of tabs and control characters.",
                 path=path,
             )
+    changed = nfc_changes(names)
+    if changed:
+        names = list(dict.fromkeys(changed.get(n, n) for n in names))
+        ties = [(changed.get(a, a), changed.get(b, b), d) for a, b, d in ties]
     has_weight = bool(weight) and any(weight in d for _, _, d in ties)
     if weight and weight != "weight" and not has_weight:
         raise InputError(
@@ -847,9 +987,12 @@ def _from_parsed(
                 )
             raw = d[weight]
             w = _number(raw)
+            shown = raw if isinstance(raw, str) else json.dumps(raw, default=str)
             if not 0.0 <= w < math.inf:
-                shown = raw if isinstance(raw, str) else json.dumps(raw, default=str)
                 problem = _weight_problem(shown, str(weight))
+                raise InputError(f"tie {_show(a)} - {_show(b)}: {problem}", path=path)
+            if not (w == 0.0 or _WEIGHT_MIN <= w <= _WEIGHT_MAX):
+                problem = _weight_range_problem(repr(w), str(weight)) or ""
                 raise InputError(f"tie {_show(a)} - {_show(b)}: {problem}", path=path)
         if a == b:
             loops += 1
@@ -861,6 +1004,9 @@ def _from_parsed(
         else:
             edges[key] = old + w
             merged += 1
+            if old + w > _WEIGHT_MAX:
+                problem = _too_large(f"{old + w:.4g}", str(weight), True)
+                raise InputError(f"tie {_show(a)} - {_show(b)}: {problem}", path=path)
     counts = {
         "rows_read": rows,
         "blank_rows_skipped": 0,
@@ -868,6 +1014,7 @@ def _from_parsed(
         "duplicate_edges_merged": merged,
         "names_trimmed": 0,
         "columns_ignored": 0,
+        "names_normalised": len(changed),
     }
     graph = _build_graph(names, edges, directed, counts, path)
     return graph, counts, (weight if has_weight else None)
@@ -951,7 +1098,13 @@ def load_edges(
         graph, counts, wcol = _from_parsed(parsed, shown, directed=directed, weight=weight)
         fmt = kind
     return LoadedNetwork(
-        graph=graph, path=shown, sha256=digest, format=fmt, counts=counts, weight_column=wcol
+        graph=graph,
+        path=shown,
+        sha256=digest,
+        format=fmt,
+        counts=counts,
+        weight_column=wcol,
+        lookalikes=tuple(lookalike_groups(graph)) if counts["lookalike_names"] else (),
     )
 
 
@@ -1010,7 +1163,7 @@ def load_nodes(path: str | Path, network: LoadedNetwork) -> NodeTable:
     columns = [(name, i) for name, i in index.items() if i != ni]
     attributes: dict[str, dict[str, str]] = {}
     first_line: dict[str, int] = {}
-    blank = trimmed = short = 0
+    blank = trimmed = short = normalised = 0
     prev = line = header_line
     try:
         for row in reader:
@@ -1034,6 +1187,9 @@ def load_nodes(path: str | Path, network: LoadedNetwork) -> NodeTable:
             raw = row[ni]
             name = raw.strip()
             trimmed += len(name) != len(raw)
+            normal = nfc(name)
+            normalised += normal != name
+            name = normal
             if not name:
                 raise InputError(
                     "the node name is empty. Fill it in or delete the row.", path=shown, line=line
@@ -1046,6 +1202,8 @@ def load_nodes(path: str | Path, network: LoadedNetwork) -> NodeTable:
                     path=shown,
                     line=line,
                 )
+            if not skeleton(name):
+                raise InputError(_INVISIBLE_NAME.format(shown_name(name)), path=shown, line=line)
             if name in first_line:
                 raise InputError(
                     f"the node {_show(name)} is listed again (first at line "
@@ -1066,6 +1224,7 @@ def load_nodes(path: str | Path, network: LoadedNetwork) -> NodeTable:
     graph = network.graph
     extra = [n for n in attributes if n not in graph]
     missing = [str(n) for n in graph if n not in attributes]
+    lookalikes = _lookalikes_across(extra, missing)
     counts = {
         "rows_read": len(attributes),
         "blank_rows_skipped": blank,
@@ -1073,6 +1232,8 @@ def load_nodes(path: str | Path, network: LoadedNetwork) -> NodeTable:
         "short_rows_filled": short,
         "extra_nodes": len(extra),
         "missing_nodes": len(missing),
+        "names_normalised": normalised,
+        "lookalike_names": len(lookalikes),
     }
     return NodeTable(
         attributes=attributes,
@@ -1082,4 +1243,64 @@ def load_nodes(path: str | Path, network: LoadedNetwork) -> NodeTable:
         counts=counts,
         path=shown,
         sha256=digest,
+        lookalikes=tuple(lookalikes),
     )
+
+
+def _lookalikes_across(extra: list[str], missing: list[str]) -> list[tuple[str, ...]]:
+    """(nodes-file name, network name) pairs that look alike but differ: a member the
+    nodes file would otherwise add as a phantom without ties."""
+    if not extra or not missing:
+        return []
+    by_look: dict[str, str] = {}
+    for name in missing:
+        by_look.setdefault(skeleton(name), name)
+    return [(n, by_look[skeleton(n)]) for n in extra if skeleton(n) in by_look]
+
+
+def check_group_column(table: NodeTable | None, column: str) -> None:
+    """Refuse a ``--group-by`` column that is absent, or blank for every member.
+
+    Called before the analysis, so that the mistake costs seconds, not the whole run.
+
+    Parameters
+    ----------
+    table : NodeTable or None
+        The nodes file read with :func:`load_nodes`; ``None`` when none was given.
+    column : str
+        The column holding the formal groups.
+
+    Raises
+    ------
+    InputError
+        When there is no nodes file, no such column, or no member with a value in it.
+
+    Examples
+    --------
+    >>> t = NodeTable({"Ana": {"team": " "}}, ["team"], [], [], path="people.csv")
+    >>> check_group_column(t, "team")
+    Traceback (most recent call last):
+    ...
+    roles.errors.InputError: people.csv: the column 'team' is blank for every member, ...
+    """
+    if table is None:
+        raise InputError(
+            f"--group-by {column!r} needs a nodes file holding that column; give it with "
+            "--nodes (a 'node' column plus the group column)."
+        )
+    index = {name: i for i, name in enumerate(table.columns)}
+    if column not in index:
+        close = difflib.get_close_matches(column, table.columns, n=1, cutoff=0.6)
+        hint = f" Did you mean {close[0]!r}?" if close else ""
+        raise InputError(
+            f"the nodes file has no column {column!r} to group by; its columns are "
+            f"{_found_columns(index) or 'none but node'}.{hint}",
+            path=table.path,
+        )
+    if not any(attrs.get(column, "").strip() for attrs in table.attributes.values()):
+        raise InputError(
+            f"the column {column!r} is blank for every member, so there are no formal "
+            "groups to compare with the communities. Fill it in, or choose another "
+            "column with --group-by.",
+            path=table.path,
+        )

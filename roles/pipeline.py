@@ -356,6 +356,11 @@ def run(
                 f"there is no attribute column {group_by!r} to group by. "
                 f"Columns of the nodes file: {known}."
             )
+        if not any(str(a.get(group_by, "")).strip() for a in (attributes or {}).values()):
+            raise InputError(
+                f"the column {group_by!r} is blank for every member, so there are no formal "
+                "groups to compare with the communities. Fill it in, or choose another column."
+            )
     if not all(isinstance(node, str) for node in graph):
         graph = nx.relabel_nodes(graph, {n: str(n) for n in graph}, copy=True)
     if remove:

@@ -12,6 +12,7 @@ from pathlib import Path
 import networkx as nx
 import pytest
 
+from roles.errors import InputError
 from roles.load import LoadedNetwork, load_edges, load_nodes
 
 
@@ -136,7 +137,10 @@ def test_unicode_names(tmp_path):
     names = ["李雷", "Ŝtefan", "Zoë", "محمد", "😀 team", "Ωmega", "e\u0301"]  # any script, emoji
     rows = "\n".join(f'"{a}","{b}",1' for a, b in zip(names[:-1], names[1:], strict=True))
     net = load_edges(write(tmp_path, "u.csv", "source,target,weight\n" + rows + "\n"))
-    assert list(net.graph) == names  # first-appearance order, text unchanged
+    # First-appearance order, text unchanged but for NFC: e + U+0301 is U+00E9
+    # (UnicodeData.txt, the canonical decomposition of U+00E9 is 0065 0301).
+    assert list(net.graph) == names[:-1] + ["\u00e9"]
+    assert net.counts["names_normalised"] == 1
 
 
 def test_quoted_names_with_delimiters_and_quotes(tmp_path):
@@ -318,3 +322,111 @@ def test_nodes_file_only_node_column(tmp_path, small):
     table = load_nodes(write(tmp_path, "n.csv", "node\nAna\nZed\n"), small)
     assert table.columns == []
     assert table.extra_nodes == ["Zed"]
+
+
+# ------------------------------------------------------------------ Unicode forms of names
+# Canonical equivalence from UnicodeData.txt: U+00EB (e with diaeresis) = 0065 0308,
+# U+00C5 (A with ring) = 0041 030A; so "Zoë" typed composed and exported decomposed is
+# one name in NFC (Unicode Standard Annex #15).
+ZOE_NFC, ZOE_NFD = "Zo\u00eb", "Zoe\u0308"
+
+
+def test_nfc_and_nfd_forms_are_one_member(tmp_path):
+    text = f"source,target,weight\n{ZOE_NFC},Ana,1\n{ZOE_NFD},Ana,2\n{ZOE_NFD},{ZOE_NFC},5\n"
+    net = load_edges(write(tmp_path, "z.csv", text))
+    assert sorted(net.graph) == ["Ana", ZOE_NFC]
+    assert net.graph[ZOE_NFC]["Ana"]["weight"] == 3.0  # the two rows' weights added
+    c = net.counts
+    assert c["names_normalised"] == 1
+    assert (c["duplicate_edges_merged"], c["self_loops_dropped"]) == (1, 1)
+    assert c["lookalike_names"] == 0 and net.lookalikes == ()
+
+
+@pytest.mark.parametrize(("edges_form", "nodes_form"), [(ZOE_NFD, ZOE_NFC), (ZOE_NFC, ZOE_NFD)])
+def test_nodes_file_in_another_form_makes_no_phantom(tmp_path, edges_form, nodes_form):
+    net = load_edges(write(tmp_path, "e.csv", f"source,target\n{edges_form},Ana\n"))
+    table = load_nodes(write(tmp_path, "n.csv", f"node,team\n{nodes_form},x\nAna,y\n"), net)
+    assert table.extra_nodes == [] and table.missing_nodes == []
+    assert table.attributes[ZOE_NFC] == {"team": "x"}
+    assert table.counts["names_normalised"] == (nodes_form == ZOE_NFD)
+
+
+def test_nodes_file_listing_both_forms_is_a_repeat(tmp_path):
+    net = load_edges(write(tmp_path, "e.csv", f"source,target\n{ZOE_NFC},Ana\n"))
+    path = write(tmp_path, "n.csv", f"node\n{ZOE_NFC}\n{ZOE_NFD}\n")
+    with pytest.raises(InputError, match="listed again .first at line 2"):
+        load_nodes(path, net)
+
+
+@pytest.mark.parametrize("kind", ["json", "graphml"])
+def test_nfd_names_in_json_and_graphml(tmp_path, kind):
+    g = nx.Graph([(ZOE_NFD, "Ana"), (ZOE_NFC, "Ben")])
+    if kind == "json":
+        path = tmp_path / "g.json"
+        path.write_text(json.dumps(nx.node_link_data(g, edges="edges")))
+    else:
+        path = tmp_path / "g.graphml"
+        nx.write_graphml(g, path)
+    net = load_edges(path)
+    assert sorted(net.graph) == ["Ana", "Ben", ZOE_NFC]
+    assert net.counts["names_normalised"] == 1
+
+
+@pytest.mark.parametrize(
+    "other",
+    [
+        "Ana\u200b",  # zero-width space (U+200B, category Cf)
+        "A\u00adna",  # soft hyphen
+        "\u200eAna",  # left-to-right mark
+        "\uff21na",  # full-width A: NFKC maps U+FF21 to A (UnicodeData.txt <wide> 0041)
+    ],
+)
+def test_lookalike_names_are_counted_and_kept_apart(tmp_path, other):
+    net = load_edges(write(tmp_path, "l.csv", f"source,target\nAna,Ben\n{other},Cai\n"))
+    assert net.graph.number_of_nodes() == 4  # not merged: the character may be meant
+    assert net.counts["lookalike_names"] == 2
+    assert net.lookalikes == (("Ana", other),)
+
+
+def test_lookalike_between_nodes_file_and_network(tmp_path):
+    net = load_edges(write(tmp_path, "e.csv", "source,target\nAna,Ben\n"))
+    table = load_nodes(write(tmp_path, "n.csv", "node,team\nAna\u200b,x\nBen,y\n"), net)
+    assert table.extra_nodes == ["Ana\u200b"] and table.missing_nodes == ["Ana"]
+    assert table.counts["lookalike_names"] == 1
+    assert table.lookalikes == (("Ana\u200b", "Ana"),)
+
+
+def test_name_longer_than_the_csv_field_limit(tmp_path):
+    # Python's csv module refuses fields over csv.field_size_limit(), 131,072 by default
+    # (Python documentation, csv.field_size_limit).
+    long = "x" * 131_073
+    for where, text in (
+        (3, f"source,target\nAna,Ben\n{long},Ana\n"),
+        (3, f'source,target\nAna,Ben\n"{long}",Ana\n'),
+    ):
+        with pytest.raises(InputError) as info:
+            load_edges(write(tmp_path, "long.csv", text))
+        assert info.value.line == where
+        assert "longer than 131,072 characters" in str(info.value)
+        assert "name too long" in str(info.value)
+    path = write(tmp_path, "n.csv", f"node,team\nAna,x\n{long},y\n")
+    net = load_edges(write(tmp_path, "e.csv", "source,target\nAna,Ben\n"))
+    with pytest.raises(InputError, match="name too long") as info:
+        load_nodes(path, net)
+    assert info.value.line == 3
+
+
+@pytest.mark.parametrize("name", ["\u200b", "\u200d\u200d", "\u00ad", "\ufe0f"])
+def test_name_of_invisible_characters_only_is_refused(tmp_path, name):
+    path = write(tmp_path, "i.csv", f"source,target\nAna,Ben\nBen,{name}\n")
+    with pytest.raises(InputError, match="print as nothing") as info:
+        load_edges(path)
+    assert info.value.line == 3
+    nodes = write(tmp_path, "n.csv", f"node\nAna\n{name}\n")
+    net = load_edges(write(tmp_path, "e.csv", "source,target\nAna,Ben\n"))
+    with pytest.raises(InputError, match="print as nothing") as info:
+        load_nodes(nodes, net)
+    assert info.value.line == 3
+    doc = {"nodes": [{"id": "a"}, {"id": name}], "edges": [{"source": "a", "target": name}]}
+    with pytest.raises(InputError, match="print as nothing"):
+        load_edges(write(tmp_path, "j.json", json.dumps(doc)))

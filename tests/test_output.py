@@ -5,6 +5,7 @@ formula-safe CSV cells (OWASP, "CSV Injection")."""
 from __future__ import annotations
 
 import csv
+import json
 import math
 import os
 import signal
@@ -19,27 +20,37 @@ import pytest
 
 import roles.output
 from roles.errors import RolesError
+from roles.manifest import MANIFEST, read_manifest
 from roles.output import OutputFolder, safe_cell, write_csv
 
 ROOT = Path(__file__).resolve().parent.parent
 
 
 def snapshot(folder: Path) -> dict[str, bytes]:
+    """Every file under ``folder`` but the tool's manifest."""
     return {
-        str(p.relative_to(folder)): p.read_bytes() for p in sorted(folder.rglob("*")) if p.is_file()
+        str(p.relative_to(folder)): p.read_bytes()
+        for p in sorted(folder.rglob("*"))
+        if p.is_file() and p.name != MANIFEST
     }
 
 
+def write_set(folder: Path, files: dict[str, str], command: str = "roles") -> None:
+    """Write ``files`` into ``folder`` as one run of the tool would."""
+    with OutputFolder(folder, command=command) as tmp:
+        for name, text in files.items():
+            (tmp / name).parent.mkdir(parents=True, exist_ok=True)
+            (tmp / name).write_text(text)
+
+
 def leftovers(parent: Path) -> list[str]:
-    return sorted(p.name for p in parent.iterdir() if ".roles-" in p.name)
+    return sorted(p.name for p in parent.iterdir() if ".roles-" in p.name and p.name != MANIFEST)
 
 
 @pytest.fixture
 def earlier(tmp_path) -> Path:
     out = tmp_path / "report"
-    out.mkdir()
-    (out / "nodes.csv").write_text("earlier nodes")
-    (out / "summary.json").write_text("earlier summary")
+    write_set(out, {"nodes.csv": "earlier nodes", "summary.json": "earlier summary"})
     return out
 
 
@@ -82,21 +93,190 @@ def test_swap_without_atomic_exchange(earlier, monkeypatch):
     assert leftovers(earlier.parent) == []
 
 
-def test_other_files_in_the_folder_are_kept(earlier):
-    (earlier / "my notes.txt").write_text("keep me")
-    (earlier / "figures").mkdir()
-    (earlier / "figures" / "old.svg").write_text("old")
-    with OutputFolder(earlier) as tmp:
+def test_other_files_in_the_folder_are_kept(tmp_path):
+    out = tmp_path / "report"
+    write_set(out, {"nodes.csv": "n1", "summary.json": "s1", "figures/old.svg": "old"})
+    (out / "my notes.txt").write_text("keep me")
+    with OutputFolder(out) as tmp:
         (tmp / "nodes.csv").write_text("new nodes")
         (tmp / "figures").mkdir()
         (tmp / "figures" / "new.svg").write_text("new")
-    assert snapshot(earlier) == {
+    assert snapshot(out) == {
         "my notes.txt": b"keep me",
-        "nodes.csv": b"new nodes",
-        "summary.json": b"earlier summary",  # not produced this time: left alone
-        "figures/new.svg": b"new",  # a produced folder replaces the earlier one entirely
+        "nodes.csv": b"new nodes",  # summary.json of the earlier run is gone: no mix
+        "figures/new.svg": b"new",  # the tool's earlier folder is replaced entirely
     }
-    assert leftovers(earlier.parent) == [] and leftovers(earlier) == []
+    assert set(read_manifest(out)) == {"nodes.csv", "figures"}
+    assert leftovers(out.parent) == [] and leftovers(out) == []
+
+
+def test_manifest_names_the_set_and_its_contents(tmp_path):
+    out = tmp_path / "report"
+    write_set(out, {"nodes.csv": "abc"}, command="report")
+    doc = json.loads((out / MANIFEST).read_text())
+    # SHA-256 of b"abc": FIPS 180-2, appendix B.1 example.
+    abc = "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"
+    assert doc["command"] == "report" and doc["complete"] is True
+    assert doc["entries"] == {"nodes.csv": ["file:" + abc]}
+
+
+@pytest.mark.parametrize("user_file", [False, True])
+def test_report_then_embed_leaves_one_set(tmp_path, user_file):
+    out = tmp_path / "out"
+    report = {"nodes.csv": "r", "summary.json": "report summary", "report.pdf": "%PDF"}
+    write_set(out, report, command="report")
+    if user_file:  # then the outputs are moved one by one, not as a whole folder
+        (out / "notes.txt").write_text("mine")
+    write_set(out, {"local.csv": "l", "far.csv": "f", "summary.json": "embed summary"}, "embed")
+    expected = {"local.csv": b"l", "far.csv": b"f", "summary.json": b"embed summary"}
+    if user_file:
+        expected["notes.txt"] = b"mine"
+    assert snapshot(out) == expected
+    assert json.loads((out / MANIFEST).read_text())["command"] == "embed"
+    assert leftovers(tmp_path) == [] and leftovers(out) == []
+
+
+def test_folder_in_place_of_an_output_is_never_deleted(tmp_path):
+    out = tmp_path / "report"
+    write_set(out, {"nodes.csv": "earlier", "summary.json": "s"})
+    (out / "nodes.csv").unlink()
+    (out / "nodes.csv").mkdir()
+    (out / "nodes.csv" / "precious.txt").write_text("user data")
+    before = snapshot(out)
+    with pytest.raises(RolesError, match=r"already holds 'nodes.csv'.*a folder now"):
+        OutputFolder(out, expected=["nodes.csv", "summary.json"])  # refused before the work
+    with pytest.raises(RolesError, match="already holds 'nodes.csv'"), OutputFolder(out) as tmp:
+        (tmp / "nodes.csv").write_text("new")  # and at the end, when not announced
+    assert snapshot(out) == before
+    assert leftovers(tmp_path) == []
+
+
+@pytest.mark.parametrize(
+    ("prepare", "why"),
+    [
+        (lambda out: (out / "nodes.csv").write_text("edited by hand"), "changed since"),
+        (lambda out: (out / MANIFEST).unlink(), "no earlier run"),  # an older version's folder
+    ],
+)
+def test_entries_not_written_by_the_tool_are_refused(tmp_path, prepare, why):
+    out = tmp_path / "report"
+    write_set(out, {"nodes.csv": "earlier", "summary.json": "s"})
+    prepare(out)
+    before = snapshot(out)
+    with pytest.raises(RolesError, match=why):
+        OutputFolder(out, expected=["nodes.csv"])
+    with pytest.raises(RolesError, match=why), OutputFolder(out) as tmp:
+        (tmp / "nodes.csv").write_text("new")
+    assert snapshot(out) == before
+    assert leftovers(tmp_path) == []
+
+
+def test_hard_link_of_an_input_is_never_replaced(tmp_path):
+    edges = tmp_path / "edges.csv"
+    edges.write_text("source,target\na,b\n")
+    out = tmp_path / "report"
+    write_set(out, {"nodes.csv": "source,target\na,b\n"})  # same bytes as the input
+    (out / "nodes.csv").unlink()
+    os.link(edges, out / "nodes.csv")  # the input under an output's name
+    with pytest.raises(RolesError, match="the input file '.*edges.csv' itself"):
+        OutputFolder(out, inputs=[edges], expected=["nodes.csv"])
+    assert edges.read_text() == "source,target\na,b\n"
+    assert os.path.samefile(edges, out / "nodes.csv")
+
+
+def test_target_reached_by_another_path_holding_the_input(tmp_path):
+    data = tmp_path / "data"
+    data.mkdir()
+    edges = data / "edges.csv"
+    edges.write_text("x")
+    mount = tmp_path / "mnt"
+    mount.symlink_to(data, target_is_directory=True)
+    with pytest.raises(RolesError, match="holds the input file"):
+        OutputFolder(tmp_path / "data", inputs=[mount / "edges.csv"])
+
+
+def test_interrupted_entry_moves_are_completed_by_the_next_run(tmp_path, monkeypatch):
+    out = tmp_path / "report"
+    write_set(out, {"nodes.csv": "n1", "summary.json": "s1", "graph.graphml": "g1"})
+    (out / "notes.txt").write_text("mine")
+    real_rename = os.rename
+    calls = []
+
+    def failing(src, dst):
+        calls.append(dst)
+        if len(calls) == 5:  # three earlier entries moved aside, one new one moved in
+            raise OSError(28, "No space left on device")
+        return real_rename(src, dst)
+
+    monkeypatch.setattr(os, "rename", failing)
+    with pytest.raises(RolesError, match="No space left"), OutputFolder(out) as tmp:
+        (tmp / "nodes.csv").write_text("n2")
+        (tmp / "summary.json").write_text("s2")
+    monkeypatch.undo()
+    assert leftovers(tmp_path) == []
+    assert json.loads((out / MANIFEST).read_text())["complete"] is False
+    write_set(out, {"nodes.csv": "n3"})  # the half-moved folder is still the tool's
+    assert snapshot(out) == {"nodes.csv": b"n3", "notes.txt": b"mine"}
+
+
+# ------------------------------------------------------------------ unwritable targets
+
+
+@pytest.mark.parametrize("exists", [True, False])
+def test_read_only_folder_refused_before_the_work(tmp_path, exists):
+    place = tmp_path / "locked"
+    if exists:
+        write_set(place, {"nodes.csv": "earlier"})
+        target = place
+    else:
+        place.mkdir()
+        target = place / "report"
+    before = snapshot(place)
+    place.chmod(0o555)  # refused by its permission bits even when run as root
+    try:
+        with pytest.raises(RolesError, match="read-only"):
+            OutputFolder(target)
+        assert snapshot(place) == before
+        assert leftovers(tmp_path) == [] and leftovers(place) == []
+    finally:
+        place.chmod(0o755)
+
+
+def test_proc_refused_before_the_work():
+    with pytest.raises(RolesError, match="read-only|cannot be used|nothing can be created"):
+        OutputFolder("/proc/x")
+
+
+def test_name_of_256_bytes_refused(tmp_path):
+    with pytest.raises(RolesError, match="name of 256 bytes; file systems allow at most 255"):
+        OutputFolder(tmp_path / ("r" * 256))
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_path_over_4096_bytes_refused(tmp_path):
+    deep = tmp_path.joinpath(*(["d" * 200] * 21))
+    with pytest.raises(RolesError, match="full path is .* bytes long; the system allows at most"):
+        OutputFolder(deep)
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_failed_moves_leave_no_staging_folder_on_any_retry(tmp_path, monkeypatch):
+    out = tmp_path / "report"
+    write_set(out, {"nodes.csv": "n1"})
+    monkeypatch.setattr(roles.output, "_exchange", lambda a, b: False)
+    real_rename = os.rename
+
+    def failing(src, dst):
+        if Path(dst) == out.resolve() and ".roles-tmp-" in str(src):
+            raise OSError(5, "Input/output error")
+        return real_rename(src, dst)
+
+    monkeypatch.setattr(os, "rename", failing)
+    for _ in range(3):
+        with pytest.raises(RolesError, match="Input/output error"), OutputFolder(out) as tmp:
+            (tmp / "nodes.csv").write_text("n2")
+        assert leftovers(tmp_path) == []
+    assert snapshot(out) == {"nodes.csv": b"n1"}
 
 
 def test_working_folder_is_never_moved(earlier, monkeypatch):
@@ -247,7 +427,7 @@ def test_sigkill_keeps_earlier_outputs_next_run_cleans_up(tmp_path, earlier):
     with OutputFolder(earlier) as tmp:  # the next run removes the dead run's leftovers
         assert leftovers(earlier.parent) == [tmp.name]
         (tmp / "nodes.csv").write_text("new nodes")
-    assert snapshot(earlier) == {"nodes.csv": b"new nodes", "summary.json": b"earlier summary"}
+    assert snapshot(earlier) == {"nodes.csv": b"new nodes"}  # one run's set, not a mix
     assert leftovers(earlier.parent) == []
 
 

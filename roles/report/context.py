@@ -626,6 +626,11 @@ _COUNT_WORDS = {
     "edges": "{ties} kept",
     "nodes_only_in_nodes_file": "{members} only in the nodes file (kept without {ties})",
     "nodes_missing_from_nodes_file": "{members} missing from the nodes file",
+    "names_normalised": "names in another Unicode form (decomposed accents) read as one",
+    "lookalike_names": "names that look like another but differ by invisible characters "
+    "(kept apart)",
+    "nodes_lookalike_names": "names of the nodes file that look like a {member}'s but differ "
+    "by invisible characters",
 }
 
 
@@ -637,9 +642,20 @@ def _method(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
         return _COUNT_WORDS.get(key, key.replace("_", " ")).format(**v)
 
     counts = [{"what": words(k), "n": _fmt(val)} for k, val in inp.get("counts", {}).items()]
-    for key in ("nodes_only_in_nodes_file", "nodes_missing_from_nodes_file"):
+    for key in (
+        "nodes_only_in_nodes_file",
+        "nodes_missing_from_nodes_file",
+        "nodes_lookalike_names",
+    ):
         if key in inp:
             counts.append({"what": words(key), "n": _fmt(inp[key])})
+    for key, example in (
+        ("lookalike_names", inp.get("lookalike_example")),
+        ("nodes_lookalike_names", inp.get("nodes_lookalike_example")),
+    ):
+        for row in counts:
+            if example and row["what"] == words(key):
+                row["what"] += ", for example " + " and ".join(example)
     grouping = [
         {
             "view": view,

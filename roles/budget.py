@@ -6,9 +6,9 @@ tokens of the training, so a network of a few dozen members (Zachary's karate cl
 members x 10 walks x 40 nodes, about 14,000 tokens) stops learning before its vectors
 settle: with one epoch the far view of the karate club found no groups in any of seeds
 0-9. Below :data:`MIN_TOKENS_PER_VIEW` tokens per view the epochs are raised until the
-floor is met, up to :data:`MAX_EPOCHS`: 12 epochs for the karate club (a second each
-view), 1 from 375 members up. With 10 epochs the far view found the two factions in
-every seed (NMI 0.85 on average; ``benchmarks/RESULTS.md``, "Training budget"); on LFR
+floor is met, up to :data:`MAX_EPOCHS`: 12 epochs for the karate club (well under a
+second), 1 from 375 members up. With 10 epochs the far view found the two factions in
+every seed (mean NMI 0.84-0.85; ``benchmarks/RESULTS.md``, "Training budget"); on LFR
 graphs of 1,000 members three epochs did not help (mean NMI at mixing 0.4, local view,
 0.625 against 0.666), so the floor stops well below them.
 

@@ -126,12 +126,13 @@ def training_floor(n_nodes: int, config: Config) -> tuple[Config, str | None]:
     if epochs <= emb.epochs:
         return config, None
     raised = dataclasses.replace(config, embedding=dataclasses.replace(emb, epochs=epochs))
+    before = "once" if emb.epochs == 1 else f"{emb.epochs} times"
     note = (
         f"This network is small ({n_nodes:,} members), so the random walks that describe "
-        f"each member's surroundings were learned {epochs} times over instead of "
-        f"{emb.epochs}: with too few walks the learning stops before the groups show. "
-        "This costs seconds. To keep the setting, set epochs in the [embedding] section "
-        "of a configuration file."
+        f"each member's surroundings were learned from {epochs} times instead of "
+        f"{before}: on a network this small, one pass stops learning before the groups "
+        "show. This costs seconds. To keep the setting, set epochs in the [embedding] "
+        "section of a configuration file."
     )
     return raised, note
 

@@ -113,7 +113,7 @@ def test_small_networks_train_longer(n, epochs):
     if epochs > 1:
         assert n * 400 * epochs >= MIN_TOKENS_PER_VIEW or epochs == MAX_EPOCHS
         assert n * 400 * (epochs - 1) < MIN_TOKENS_PER_VIEW  # no more than needed
-        assert f"{epochs} times over instead of 1" in note
+        assert f"{epochs} times instead of once" in note
         assert got.walks == Config().walks and got.embedding.window == 5
     else:
         assert note is None and got.embedding == Config().embedding

@@ -9,7 +9,9 @@ spread of a sampled fit shows too.
 
 Run: ``.venv/bin/python benchmarks/bench_cluster.py [--sizes 50000 100000]
 [--limits 0 20000 30000] [--repeats 2] [--windows 0 5] [--negatives 5 3]
-[--vector-dims 64 16] [--min-sizes 0 10] [--dims 16 8] [--json FILE]``. Limit ``0``:
+[--vector-dims 64 16] [--min-sizes 0 10] [--dims 16 8] [--selection hdbscan network]
+[--json FILE]``. ``--selection network`` groups as ``roles.run`` does, with the graph's
+ties (``cluster(..., ties=...)``); ``hdbscan``, HDBSCAN's own selection. Limit ``0``:
 every row; window ``0``: the one ``roles.budget.walk_budget`` picks; ``--negatives``:
 skip-gram negative samples; ``--vector-dims``: skip-gram vector size, ``0`` the
 default's; ``--dims``: dimensions kept by PCA. Cached vectors are named after the
@@ -81,6 +83,18 @@ def _vectors(
     return vectors, np.asarray(truth), walks
 
 
+def _ties(n: int, seed: int) -> Any:
+    """The planted graph's ties, in the form ``roles.cluster.cluster`` takes them."""
+    from bench_pipeline import make_graph
+
+    from roles.cluster import ties_of
+    from roles.graph import to_csr
+
+    graph, _ = make_graph("planted", n, seed)
+    csr = to_csr(graph)
+    return ties_of(csr.indptr, csr.indices, csr.weights, np.arange(csr.n_nodes))
+
+
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--sizes", type=int, nargs="+", default=[50000, 100000])
@@ -102,6 +116,7 @@ def main() -> None:
         "--dims", type=int, nargs="+", default=[16], help="dimensions kept by PCA before HDBSCAN"
     )
     ap.add_argument("--json", metavar="FILE")
+    ap.add_argument("--selection", nargs="+", choices=["hdbscan", "network"], default=["network"])
     args = ap.parse_args()
 
     from sklearn.metrics import normalized_mutual_info_score
@@ -125,11 +140,16 @@ def main() -> None:
         vectors, truth, walks = _vectors(
             n, args.seed, Path(args.cache), window, negative, vdims or None
         )
+        ties = _ties(n, args.seed) if "network" in args.selection else None
         for view in ("local", "far"):
             settings = [
-                (d, lim, m) for d in args.dims for lim in args.limits for m in args.min_sizes
+                (d, lim, m, sel)
+                for d in args.dims
+                for lim in args.limits
+                for m in args.min_sizes
+                for sel in args.selection
             ]
-            for dims, limit, size in settings:
+            for dims, limit, size, selection in settings:
                 repeats = 1 if limit == 0 or limit >= n else args.repeats
                 for r in range(repeats):
                     start = time.perf_counter()
@@ -139,6 +159,7 @@ def main() -> None:
                         reduce_to=dims,
                         seed=r,
                         fit_limit=limit or None,
+                        ties=ties if selection == "network" else None,
                     )
                     wall = time.perf_counter() - start
                     nmi = float(normalized_mutual_info_score(truth, g.labels))
@@ -146,6 +167,7 @@ def main() -> None:
                         "nodes": n,
                         "walks": walks,
                         "view": view,
+                        "selection": selection,
                         "dims": g.dimensions,
                         "fit_limit": limit or None,
                         "min_cluster_size": g.min_cluster_size,
@@ -157,7 +179,7 @@ def main() -> None:
                     }
                     rows.append(row)
                     print(
-                        f"| {n:,} | {walks} | {view} | {g.dimensions} | "
+                        f"| {n:,} | {walks} | {view} ({selection}) | {g.dimensions} | "
                         f"{f'{limit:,}' if limit else 'all'} | "
                         f"{g.min_cluster_size} | {r if limit else '-'} | {wall:.1f} | "
                         f"{g.n_groups} | {g.noise_share:.2f} | {nmi:.3f} |",

@@ -13,7 +13,15 @@ from dataclasses import dataclass
 
 import numpy as np
 
-__all__ = ["Grouping", "cluster", "default_min_cluster_size", "fitted_rows", "MIN_GROUP"]
+__all__ = [
+    "Grouping",
+    "cluster",
+    "default_min_cluster_size",
+    "fitted_rows",
+    "ties_of",
+    "Ties",
+    "MIN_GROUP",
+]
 
 
 @dataclass(frozen=True, eq=False)
@@ -108,7 +116,7 @@ def _reduce(vectors: np.ndarray, dims: int, seed: int) -> np.ndarray:
 
 
 def _attach(
-    x: np.ndarray, hard: np.ndarray, outlier: np.ndarray, k: int = 10
+    x: np.ndarray, hard: np.ndarray, outlier: np.ndarray, k: int = 10, *, strength: bool = True
 ) -> tuple[np.ndarray, np.ndarray]:
     """Group and strength of each noise point, from its nearest clustered points.
 
@@ -126,6 +134,8 @@ def _attach(
     knn.fit(x[core], hard[core])
     proba = knn.predict_proba(x[noise])
     labels = knn.classes_[proba.argmax(axis=1)].astype(np.int64)
+    if not strength:  # the vote share alone
+        return labels, proba.max(axis=1)
     score = np.nan_to_num(np.asarray(outlier, dtype=np.float64)[noise], nan=1.0)
     return labels, proba.max(axis=1) * np.clip(1.0 - score, 0.0, 1.0)
 
@@ -139,8 +149,161 @@ def _renumber_by_size(labels: np.ndarray) -> np.ndarray:
     return rank[inverse.reshape(-1)]
 
 
-def _fit(x: np.ndarray, size: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """HDBSCAN labels (-1 = noise), membership strengths and GLOSH outlier scores.
+#: Ties between rows: ``(rows, columns, weights)`` of the symmetric adjacency matrix,
+#: every undirected tie once in each direction (:func:`ties_of`).
+Ties = tuple[np.ndarray, np.ndarray, np.ndarray]
+
+
+def ties_of(indptr: np.ndarray, indices: np.ndarray, weights: np.ndarray, rows: np.ndarray) -> Ties:
+    """The ties among ``rows`` of an undirected CSR matrix, renumbered ``0..len(rows)-1``.
+
+    ``indptr, indices, weights`` as :class:`roles.graph.CSRGraph` stores an undirected
+    network (each tie in both rows). Ties to members outside ``rows`` are dropped.
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> u, v, w = ties_of(np.array([0, 1, 3, 4]), np.array([1, 0, 2, 1]),
+    ...                   np.ones(4), np.array([1, 2]))
+    >>> u.tolist(), v.tolist(), w.tolist()
+    ([0, 1], [1, 0], [1.0, 1.0])
+    """
+    indptr = np.asarray(indptr, dtype=np.int64)
+    n = indptr.shape[0] - 1
+    position = np.full(n, -1, dtype=np.int64)
+    position[np.asarray(rows, dtype=np.int64)] = np.arange(len(rows))
+    src = np.repeat(np.arange(n, dtype=np.int64), np.diff(indptr))
+    u, v = position[src], position[np.asarray(indices, dtype=np.int64)]
+    keep = (u >= 0) & (v >= 0)
+    w = np.asarray(weights, dtype=np.float64)[keep].copy()
+    u, v = u[keep], v[keep]
+    w[u == v] *= 2.0  # a self-loop counts twice on the diagonal, as in modularity.py
+    return u, v, w
+
+
+def _tree_selection(
+    raw: np.ndarray, n: int, x: np.ndarray, outlier: np.ndarray, ties: Ties, seed: int
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Groups from HDBSCAN's condensed tree, chosen with the network's ties.
+
+    HDBSCAN's own selection keeps the clusters of greatest density stability (excess of
+    mass); on node2vec vectors of loosely knit communities it leaves most members as
+    noise and merges communities (benchmarks/RESULTS.md, "Groups from the network's
+    evidence"). Here the tree is read with the network:
+
+    1. Every row goes to a leaf of the condensed tree: its own when it fell out of a
+       leaf, else the leaf of most of its 10 nearest leaf members (distance-weighted,
+       as :func:`_attach`).
+    2. Members move between leaves while modularity rises (:func:`roles.refine.refine`).
+    3. The set of tree clusters, none inside another and together covering every leaf,
+       of highest modularity is kept. Modularity is a sum over groups of
+       ``L_c / 2m - (D_c / 2m)^2`` (``L_c`` the tie weight inside group ``c``, both
+       directions; ``D_c`` its members' total strength; Newman & Girvan 2004), so the
+       best set follows bottom-up as HDBSCAN's own excess-of-mass selection does: a
+       cluster is kept when its term is at least the best its children reach.
+
+    Each step costs one look at every tie (times the depth of the tree for step 3).
+
+    Returns
+    -------
+    labels : ndarray of int
+        Group of each row, from 0 (all -1 when the tree never splits).
+    strength : ndarray of float
+        A member inside its group's tree cluster holds with HDBSCAN's strength, its
+        lambda over the largest in the cluster (Campello et al. 2013); any other with
+        its leaf vote share times one minus its GLOSH outlier score.
+    noise : ndarray of bool
+        Whether the row is outside its group's tree cluster (it fell out of the tree
+        above it, or moved there in step 2).
+    """
+    from .refine import refine
+
+    parent, child = raw["parent"].astype(np.int64), raw["child"].astype(np.int64)
+    lam = np.nan_to_num(raw["lambda_val"].astype(np.float64), posinf=np.finfo(np.float64).max)
+    root = int(parent.min())
+    k = int(max(parent.max(), child.max())) - root + 1  # clusters, root included
+    is_edge = child >= n
+    up = np.zeros(k, dtype=np.int64)  # parent cluster of each cluster (root: itself)
+    up[child[is_edge] - root] = parent[is_edge] - root
+    has_child = np.zeros(k, dtype=bool)
+    has_child[parent[is_edge] - root] = True
+    point = ~is_edge
+    home = np.zeros(n, dtype=np.int64)  # the cluster each row fell out of
+    home[child[point]] = parent[point] - root
+    point_lambda = np.zeros(n)
+    point_lambda[child[point]] = lam[point]
+    u, v, w = ties
+    two_m = float(w.sum())
+    if not has_child[0] or two_m <= 0:
+        return np.full(n, -1, dtype=np.int64), np.zeros(n), np.ones(n, dtype=bool)
+    if np.any(up[1:] >= np.arange(1, k)):  # hdbscan numbers clusters top-down
+        raise AssertionError("condensed tree: a cluster numbered before its parent")
+    depth = np.zeros(k, dtype=np.int64)
+    for c in range(1, k):
+        depth[c] = depth[up[c]] + 1
+    # 1. Leaves.
+    in_leaf = ~has_child[home]
+    leaf = np.where(in_leaf, home, -1)
+    share = np.ones(n)
+    if (~in_leaf).any():
+        leaf[~in_leaf], share[~in_leaf] = _attach(x, leaf, outlier, strength=False)
+    # 2. Moves between leaves.
+    leaf = refine(n, ties, leaf, seed=seed)
+    # 3. Tie weight inside each cluster: each tie at the lowest cluster holding both
+    # ends, summed up the tree; strengths likewise.
+    a, b = leaf[u], leaf[v]
+    for _ in range(2 * int(depth.max())):
+        differ = a != b
+        if not differ.any():
+            break
+        a = np.where(differ & (depth[a] >= depth[b]), up[a], a)
+        b = np.where(differ & (depth[b] > depth[a]), up[b], b)
+    inside = np.bincount(a, weights=w, minlength=k)
+    total = np.bincount(leaf, weights=np.bincount(u, weights=w, minlength=n), minlength=k)
+    for c in range(k - 1, 0, -1):
+        inside[up[c]] += inside[c]
+        total[up[c]] += total[c]
+    term = inside / two_m - (total / two_m) ** 2
+    keep = np.ones(k, dtype=bool)
+    below = np.zeros(k)  # best sum over the children's subtrees
+    for c in range(k - 1, 0, -1):
+        if has_child[c]:
+            keep[c] = term[c] >= below[c]
+        below[up[c]] += max(term[c], below[c]) if has_child[c] else term[c]
+    keep[0] = False
+    chosen = np.full(k, -1, dtype=np.int64)  # the highest kept cluster at or above
+    for c in range(1, k):
+        chosen[c] = chosen[up[c]] if chosen[up[c]] >= 0 else (c if keep[c] else -1)
+    group = chosen[leaf]
+    # Inside its group's tree cluster: that cluster is the row's own or an ancestor.
+    inside_tree = np.zeros(n, dtype=bool)
+    above = home.copy()
+    for _ in range(int(depth.max()) + 1):
+        inside_tree |= above == group
+        above = up[above]
+    top = np.zeros(k)
+    np.maximum.at(top, group[inside_tree], point_lambda[inside_tree])
+    strength = np.where(
+        inside_tree,
+        np.minimum(point_lambda, top[group]) / np.maximum(top[group], 1e-300),
+        share * np.clip(1.0 - np.nan_to_num(outlier, nan=1.0), 0.0, 1.0),
+    )
+    _, labels = np.unique(group, return_inverse=True)
+    return labels.reshape(-1).astype(np.int64), np.clip(strength, 0.0, 1.0), ~inside_tree
+
+
+def _fit(
+    x: np.ndarray, size: int, ties: Ties | None = None, seed: int = 0
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """HDBSCAN labels (-1 = not yet attached), membership strengths, GLOSH outlier
+    scores, and which rows HDBSCAN left as noise.
+
+    With ``ties`` (among the rows of ``x``) the flat groups are read from the condensed
+    tree with the network (:func:`_tree_selection`); without, they are HDBSCAN's own
+    excess-of-mass selection. ``min_samples`` is 5 either way: 3 recovered loosely knit
+    LFR communities better (mean NMI at mixing 0.5, 0.274 against 0.237) but split a
+    five-member team off the karate club's instructor in most seeds, so that he no longer
+    led the hub list (benchmarks/RESULTS.md, "Groups from the network's evidence").
 
     Prim's algorithm on the exact mutual-reachability graph (``prims_balltree``), not
     hdbscan's default for low dimensions (an approximate Boruvka tree on a KD-tree):
@@ -161,18 +324,31 @@ def _fit(x: np.ndarray, size: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         hard = clusterer.fit_predict(x)
-    return (
-        np.asarray(hard, dtype=np.int64),
-        np.asarray(clusterer.probabilities_, dtype=np.float64),
-        np.asarray(clusterer.outlier_scores_, dtype=np.float64),
-    )
+    outlier = np.asarray(clusterer.outlier_scores_, dtype=np.float64)
+    if ties is not None:
+        raw = clusterer.condensed_tree_._raw_tree
+        labels, strength, noise = _tree_selection(raw, x.shape[0], x, outlier, ties, seed)
+        return labels, strength, outlier, noise
+    labels = np.asarray(hard, dtype=np.int64)
+    return labels, np.asarray(clusterer.probabilities_, dtype=np.float64), outlier, labels < 0
+
+
+def _ties_among(ties: Ties, rows: np.ndarray, n: int) -> Ties:
+    """The ties of ``ties`` (over ``n`` rows) between members of ``rows``, renumbered."""
+    position = np.full(n, -1, dtype=np.int64)
+    position[rows] = np.arange(len(rows))
+    u, v, w = ties
+    pu, pv = position[u], position[v]
+    keep = (pu >= 0) & (pv >= 0)
+    return pu[keep], pv[keep], w[keep]
 
 
 def _fit_sampled(
-    x: np.ndarray, size: int, limit: int, seed: int
-) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    x: np.ndarray, size: int, limit: int, seed: int, ties: Ties | None = None
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
     """:func:`_fit` on ``limit`` random rows; every other row takes the verdict of its
-    10 nearest sampled rows (distance-weighted vote over their labels, noise included).
+    10 nearest sampled rows (distance-weighted vote over their labels, noise included;
+    with ``ties``, noise when most of the vote comes from rows that were noise).
 
     The smallest group is scaled with the sample (``size * limit / n``), so groups of
     the same absolute size are sought as in a fit on every row.
@@ -183,8 +359,11 @@ def _fit_sampled(
     rng = np.random.default_rng(seed)
     sample = np.sort(rng.choice(n, size=limit, replace=False))
     fit_size = max(2, round(size * limit / n))
-    hard_s, prob_s, out_s = _fit(x[sample], fit_size)
+    sample_ties = None if ties is None else _ties_among(ties, sample, n)
+    hard_s, prob_s, out_s, noise_s = _fit(x[sample], fit_size, sample_ties, seed)
     hard = np.empty(n, dtype=np.int64)
+    noise = np.empty(n, dtype=bool)
+    noise[sample] = noise_s
     prob = np.empty(n)
     out = np.empty(n)
     hard[sample], prob[sample], out[sample] = hard_s, prob_s, out_s
@@ -209,7 +388,36 @@ def _fit_sampled(
     )
     out[rest] = (w * out_s[idx]).sum(axis=1) / total
     prob[rest] = np.where(hard[rest] < 0, 0.0, prob[rest])
-    return hard, prob, out
+    if ties is None:
+        noise[rest] = hard[rest] < 0
+    else:
+        noise[rest] = (w * noise_s[idx]).sum(axis=1) > 0.5 * total
+    return hard, prob, out, noise
+
+
+def _settle(
+    labels: np.ndarray, membership: np.ndarray, was_noise: np.ndarray, ties: Ties, seed: int
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Let every member move to the group that raises modularity most, on all ties.
+
+    After a sampled fit this is where the members outside the sample meet the network.
+    A member that moves counts as noise of its new group and holds with the share of its
+    tie weight that goes into that group.
+    """
+    from .refine import refine
+
+    n = len(labels)
+    moved_to = refine(n, ties, labels, seed=seed)
+    moved = moved_to != labels
+    if moved.any():
+        u, v, w = ties
+        strength = np.bincount(u, weights=w, minlength=n)
+        same = np.bincount(u, weights=w * (moved_to[u] == moved_to[v]), minlength=n)
+        membership = membership.copy()
+        membership[moved] = same[moved] / np.maximum(strength[moved], 1e-300)
+        was_noise = was_noise | moved
+    _, dense = np.unique(moved_to, return_inverse=True)
+    return dense.reshape(-1).astype(np.int64), membership, was_noise
 
 
 def cluster(
@@ -219,6 +427,7 @@ def cluster(
     reduce_to: int = 16,
     seed: int = 0,
     fit_limit: int | None = None,
+    ties: Ties | None = None,
 ) -> Grouping:
     """Group the rows of ``vectors`` with HDBSCAN and attach every noise point.
 
@@ -241,6 +450,12 @@ def cluster(
         HDBSCAN's cost grows with about the square of the rows fitted at 16 dimensions
         (2.7 s for 12,000 rows, 7.5 s for 20,000 on one core; the Boruvka tree it used
         before took about 220 s for 100,000; benchmarks/RESULTS.md).
+    ties : tuple of ndarray, optional
+        The network's ties among the rows (:func:`ties_of`). With them the groups are
+        read from HDBSCAN's condensed tree by modularity on the network
+        (:func:`_tree_selection`) and every member may then move to the group that
+        raises modularity most (:func:`roles.refine.refine`); without them, HDBSCAN's
+        own selection and the noise attached by its nearest neighbours.
 
     Returns
     -------
@@ -268,10 +483,10 @@ def cluster(
     x = _reduce(vectors, reduce_to, seed)
     rows = fitted_rows(n, fit_limit)
     if 4 <= rows < n:
-        hard, strength, outlier = _fit_sampled(x, size, rows, seed)
+        hard, strength, outlier, was_noise = _fit_sampled(x, size, rows, seed, ties)
         fitted = rows
     else:
-        hard, strength, outlier = _fit(x, size)
+        hard, strength, outlier, was_noise = _fit(x, size, ties, seed)
         fitted = n
     found = int(hard.max()) + 1 if hard.size else 0
     if found == 0:
@@ -281,11 +496,13 @@ def cluster(
     noise = hard < 0
     if noise.any():
         labels[noise], membership[noise] = _attach(x, hard, outlier)
+    if ties is not None:
+        labels, membership, was_noise = _settle(labels, membership, was_noise, ties, seed)
     labels = _renumber_by_size(labels)
     return Grouping(
         labels=labels,
         membership=np.clip(membership, 0.0, 1.0),
-        was_noise=noise,
+        was_noise=was_noise,
         n_groups=int(labels.max()) + 1,
         min_cluster_size=size,
         dimensions=int(x.shape[1]),

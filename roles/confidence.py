@@ -747,9 +747,10 @@ def _rerun(
 ) -> dict[str, np.ndarray]:
     """Both views' group labels over ``idx``, made exactly as the pipeline makes them."""
     from .embed import embed_views_then
-    from .pipeline import view_grouper
+    from .pipeline import network_ties, view_grouper
 
-    done = embed_views_then(csr, config, view_grouper(config, idx, 0), processes=processes)
+    group = view_grouper(config, idx, 0, network_ties(csr, idx))
+    done = embed_views_then(csr, config, group, processes=processes)
     return {view: done[view][1].grouping.labels for view in _VIEWS}
 
 

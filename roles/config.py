@@ -202,6 +202,8 @@ class Config:
     walks_given: bool = field(default=False, compare=False)
     #: Whether the user set the skip-gram window; only then is it kept for large networks.
     window_given: bool = field(default=False, compare=False)
+    #: Whether the user set the skip-gram epochs; only then are they kept for small networks.
+    epochs_given: bool = field(default=False, compare=False)
 
     def __post_init__(self) -> None:
         _check_int("the configuration", "seed", self.seed, 0, 2**32 - 1)
@@ -268,6 +270,7 @@ def config_from_mapping(data: Mapping[str, Any]) -> Config:
     kwargs["walks_given"] = bool(data.get("walks"))
     embedding = data.get("embedding")
     kwargs["window_given"] = isinstance(embedding, Mapping) and "window" in embedding
+    kwargs["epochs_given"] = isinstance(embedding, Mapping) and "epochs" in embedding
     if "views" in data:
         views = data["views"]
         if not isinstance(views, Mapping):

@@ -18,7 +18,7 @@ import networkx as nx
 import numpy as np
 import pandas as pd
 
-from .cluster import Grouping, cluster
+from .cluster import Grouping, Ties, cluster, ties_of
 from .compare import Comparison, compare_views, nearest_neighbours, neighbour_count
 from .config import Config
 from .errors import InputError
@@ -38,11 +38,13 @@ COMMUNITY_VIEW = "local"
 def choose_community_view(modularity: Mapping[str, float]) -> str:
     """The view whose groups have the higher modularity on this network.
 
-    Neither view wins everywhere: on LFR graphs the local view was ahead by about 0.01
-    NMI and on Zachary's karate club the far view finds no groups at all with the
-    default seed and seeds 0-7 (benchmarks/bench_views.py; 2026-12-04). Modularity
-    (Newman 2006) measured on the network itself decides per run; a view that found no
-    groups never wins.
+    Neither view wins everywhere. With the groups chosen with the network's ties
+    (:func:`roles.cluster.cluster`), mean NMI on LFR graphs of 1,000 members, mixing
+    0.1-0.5 (benchmarks/bench_groups.py, 2026-12-04): local 0.999 / 0.991 / 0.948 /
+    0.679 / 0.238, far 0.999 / 0.990 / 0.943 / 0.635 / 0.209, the view of higher
+    modularity 0.999 / 0.990 / 0.953 / 0.690 / 0.227: ahead of both at mixing 0.3 and
+    0.4, behind the local view at 0.5. Modularity (Newman 2006) measured on the network
+    itself decides per run; a view that found no groups never wins.
     """
     scores = {v: (m if np.isfinite(m) else -np.inf) for v, m in modularity.items()}
     best = max(scores.values())
@@ -225,6 +227,7 @@ def _group_view(
     reduce_to: int,
     fit_limit: int | None,
     k: int,
+    ties: Ties | None = None,
 ) -> _ViewWork:
     """Group one view's connected members and find their nearest neighbours.
 
@@ -239,6 +242,7 @@ def _group_view(
         reduce_to=reduce_to,
         seed=seeds[view],
         fit_limit=fit_limit,
+        ties=ties,
     )
     seconds["clustering"] = round(time.perf_counter() - start, 3)
     start = time.perf_counter()
@@ -247,10 +251,30 @@ def _group_view(
     return _ViewWork(grouping, neighbours, seconds)
 
 
-def view_grouper(config: Config, idx: np.ndarray, k: int) -> Callable[[str, Any], _ViewWork]:
+def network_ties(csr: Any, idx: np.ndarray) -> Ties:
+    """The ties among the members ``idx``, read as undirected (as modularity reads them),
+    in the form :func:`roles.cluster.cluster` takes them.
+
+    A directed network's tie in either direction counts once (the larger weight when
+    both directions are given).
+    """
+    if not csr.directed:
+        return ties_of(csr.indptr, csr.indices, csr.weights, idx)
+    import scipy.sparse as sp
+
+    a = sp.csr_matrix((csr.weights, csr.indices, csr.indptr), shape=(csr.n_nodes,) * 2)
+    both = a.maximum(a.T).tocsr()
+    both.sort_indices()
+    return ties_of(both.indptr, both.indices, both.data, idx)
+
+
+def view_grouper(
+    config: Config, idx: np.ndarray, k: int, ties: Ties | None = None
+) -> Callable[[str, Any], _ViewWork]:
     """The work each view's process does after its embedding, as :func:`run` does it:
-    group the members ``idx`` with ``config.cluster`` and the stage seeds of
-    ``config.seed``, then (when ``k`` > 0) find each member's ``k`` nearest neighbours.
+    group the members ``idx`` with ``config.cluster``, the network's ``ties`` among
+    them (:func:`network_ties`) and the stage seeds of ``config.seed``, then (when
+    ``k`` > 0) find each member's ``k`` nearest neighbours.
 
     The confidence re-runs (:mod:`roles.confidence`) group with it too, so a re-run
     differs from the run only in its seed.
@@ -264,6 +288,7 @@ def view_grouper(config: Config, idx: np.ndarray, k: int) -> Callable[[str, Any]
         reduce_to=config.cluster.reduce_to,
         fit_limit=config.cluster.fit_limit or None,
         k=k,
+        ties=ties,
     )
 
 
@@ -384,7 +409,9 @@ def run(
 
     idx = np.flatnonzero(connected)
     k = neighbour_count(len(idx)) if len(idx) >= 3 else 0
-    group_view = view_grouper(config, idx, k)
+    # Modularity reads ties as undirected (Newman 2006), as the walks do when they go
+    # both ways.
+    tie_csr = csr if not csr.directed else to_csr(graph.to_undirected(as_view=True))
     with timer.stage("walks, embedding and clustering"):
         walk_csr = csr
         walk_basis = "ties followed in their direction" if csr.directed else "ties"
@@ -395,12 +422,15 @@ def run(
             # walk per member and view tells, before any training is spent.
             steps = _trial_steps(csr, config, seeds[7])
             if steps < SHORT_WALKS * (config.walks.walk_length - 1):
-                walk_csr = to_csr(graph.to_undirected(as_view=True))
+                walk_csr = tie_csr
                 walk_basis = (
                     f"ties in both directions: walks that followed the direction ended "
                     f"after {steps:.1f} of {config.walks.walk_length - 1} steps on average "
                     "(one trial walk per member and view)"
                 )
+        # The groups are chosen with the ties the walks followed, read as undirected
+        # (roles.cluster); the confidence re-runs do the same.
+        group_view = view_grouper(config, idx, k, network_ties(walk_csr, idx))
         views = embed_views_then(walk_csr, config, group_view)
     vectors = {view: np.asarray(e.vectors) for view, (e, _) in views.items()}
     work: dict[str, _ViewWork] = {view: w for view, (_, w) in views.items()}
@@ -414,14 +444,6 @@ def run(
 
     view_labels = {view: full(g.labels) for view, g in groupings.items()}
     cluster_note = _sampled_fit_note(groupings, len(idx))
-    # Modularity reads ties as undirected (Newman 2006), as the walks do when they go
-    # both ways.
-    if not csr.directed:
-        tie_csr = csr
-    elif not walk_csr.directed:
-        tie_csr = walk_csr
-    else:
-        tie_csr = to_csr(graph.to_undirected(as_view=True))
     view_modularity = {
         view: modularity(tie_csr, labels) if groupings[view].n_groups > 0 else float("nan")
         for view, labels in view_labels.items()

@@ -6,11 +6,14 @@ import dataclasses
 import pytest
 
 from roles.budget import (
+    MAX_EPOCHS,
     MAX_PAIRS_PER_VIEW,
+    MIN_TOKENS_PER_VIEW,
     MIN_WALK_LENGTH,
     MIN_WALKS_PER_NODE,
     MIN_WINDOW,
     skipgram_pairs,
+    training_floor,
     walk_budget,
 )
 from roles.config import Config, EmbeddingConfig, WalkConfig, config_from_mapping
@@ -34,7 +37,7 @@ def _config(window: int = 2) -> Config:
     return Config(embedding=EmbeddingConfig(window=window))
 
 
-@pytest.mark.parametrize("n, m", [(34, 78), (1000, 10000), (10000, 100000), (20000, 200000)])
+@pytest.mark.parametrize("n, m", [(375, 1500), (1000, 10000), (10000, 100000), (20000, 200000)])
 def test_small_networks_keep_the_configuration(n, m):
     config = _config()
     assert _pairs(n, config) <= MAX_PAIRS_PER_VIEW  # precondition of this case
@@ -93,7 +96,40 @@ def test_small_networks_keep_the_default_window():
     for n in (34, 198, 270, 10000):
         got, note = walk_budget(n, 10 * n, Config())
         assert got.embedding.window == Config().embedding.window
-        assert note is None
+        assert got.walks == Config().walks
+        assert (note is None) == (n >= 375)  # below 375 members the epochs are raised
+
+
+# Training floor: tokens per view = n * walks_per_node * walk_length * epochs; the
+# expected epochs are worked by hand from MIN_TOKENS_PER_VIEW = 150,000 (our own rule,
+# roles/budget.py) and the defaults of 10 walks of 40 members.
+@pytest.mark.parametrize(
+    "n, epochs",
+    [(15, 25), (34, 12), (80, 5), (200, 2), (374, 2), (375, 1), (1000, 1), (10, 30), (3, 30)],
+)
+def test_small_networks_train_longer(n, epochs):
+    got, note = walk_budget(n, 3 * n, Config())
+    assert got.embedding.epochs == epochs == min(MAX_EPOCHS, -(-150_000 // (n * 400)))
+    if epochs > 1:
+        assert n * 400 * epochs >= MIN_TOKENS_PER_VIEW or epochs == MAX_EPOCHS
+        assert n * 400 * (epochs - 1) < MIN_TOKENS_PER_VIEW  # no more than needed
+        assert f"{epochs} times instead of once" in note
+        assert got.walks == Config().walks and got.embedding.window == 5
+    else:
+        assert note is None and got.embedding == Config().embedding
+
+
+def test_epochs_set_by_the_user_are_kept():
+    config = config_from_mapping({"embedding": {"epochs": 2}})
+    assert config.epochs_given
+    got, note = walk_budget(34, 78, config)
+    assert got is config and note is None
+
+
+def test_a_raised_budget_is_stable():
+    once, _ = training_floor(34, Config())
+    twice, note = training_floor(34, once)
+    assert twice is once and note is None
 
 
 def test_a_narrow_window_is_never_widened():

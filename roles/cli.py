@@ -77,6 +77,25 @@ def _add_input(p: argparse.ArgumentParser, *, edges: bool = True) -> None:
     )
 
 
+def _add_pseudonym_options(p: argparse.ArgumentParser) -> None:
+    p.add_argument(
+        "--pseudonymize",
+        action="store_true",
+        help="replace every member's name by a code in every output (also names in "
+        "attribute columns such as a manager column, and the input file names); codes "
+        "are keyed hashes that follow no order of the names. Codes do not make the "
+        "data anonymous: a position in the network can still identify someone",
+    )
+    p.add_argument(
+        "--key-file",
+        metavar="FILE",
+        help="with --pseudonymize: keep the secret key and the code-to-name list in FILE "
+        "(written for the owner only; keep it apart from the report). When FILE holds "
+        "the key of an earlier run, that key is used again, so the same names get the "
+        "same codes. Without it, the codes of this run cannot be traced back",
+    )
+
+
 def _add_report_options(p: argparse.ArgumentParser, *, nodes_twice: bool = False) -> None:
     if nodes_twice:
         p.add_argument(
@@ -117,17 +136,7 @@ def _add_report_options(p: argparse.ArgumentParser, *, nodes_twice: bool = False
         metavar="N",
         help="never report on an attribute group smaller than N members (default: 5)",
     )
-    p.add_argument(
-        "--pseudonymize",
-        action="store_true",
-        help="replace every member's name by a stable code in every output",
-    )
-    p.add_argument(
-        "--key-file",
-        metavar="FILE",
-        help="with --pseudonymize: also write the code-to-name key to FILE "
-        "(keep it apart from the report)",
-    )
+    _add_pseudonym_options(p)
     p.add_argument(
         "--remove",
         action="append",
@@ -190,6 +199,7 @@ def build_parser() -> argparse.ArgumentParser:
         "and summary.json into --out.",
     )
     _add_input(emb)
+    _add_pseudonym_options(emb)
     emb.add_argument(
         "--keep-walks",
         action="store_true",

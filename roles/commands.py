@@ -18,9 +18,10 @@ from .errors import InputError
 from .load import LoadedNetwork, check_group_column, load_edges, load_nodes
 from .names import shown_name
 from .output import OutputFolder
+from .privacy import WITHHELD, PseudonymKey, check_key_path, codes_for, write_key
 from .progress import StageBar
 
-__all__ = ["report", "embed", "compare", "pseudonymize"]
+__all__ = ["report", "embed", "compare"]
 
 log = logging.getLogger("roles")
 
@@ -52,32 +53,44 @@ def _source_info(net: LoadedNetwork) -> dict[str, Any]:
     return info
 
 
-def pseudonymize(graph: nx.Graph, prefix: str = "M") -> tuple[nx.Graph, dict[str, str]]:
-    """Replace every node name by a code (``M001``...) in sorted-name order.
-
-    The same names give the same codes on every run; the key (code -> name) is
-    returned so the caller can write it only when asked to.
-    """
-    names = sorted(str(n) for n in graph)
-    width = max(3, len(str(len(names))))
-    codes = {name: f"{prefix}{i + 1:0{width}d}" for i, name in enumerate(names)}
-    return nx.relabel_nodes(graph, codes, copy=True), {c: n for n, c in codes.items()}
+_PREFIX = {"organisation": "P", "supply": "F"}
 
 
-def _check_key_file(key: Path, inputs: list[Path], out: Path) -> None:
-    real = key.resolve()
-    if any(real == p.resolve() for p in inputs):
-        raise InputError(
-            f"--key-file {str(key)!r} is one of the input files; choose a new "
-            "file name for the key."
-        )
-    if real.is_dir():
-        raise InputError(f"--key-file {str(key)!r} is a folder; give a file name.")
-    if out.resolve() in real.parents:
-        raise InputError(
-            f"--key-file {str(key)!r} lies inside the output folder; keep the "
-            "key apart from the report (for example in another folder)."
-        )
+def _key_inputs(args: argparse.Namespace, inputs: list[Path]) -> list[Path]:
+    """Every file the run reads, which the key file must never overwrite."""
+    extra = [getattr(args, "config", None), getattr(args, "remove_file", None)]
+    return inputs + [Path(p) for p in extra if p]
+
+
+def _key(args: argparse.Namespace, inputs: list[Path]) -> PseudonymKey | None:
+    """The pseudonym key (read back from ``--key-file`` when it exists), checked before
+    any analysis; ``None`` without ``--pseudonymize``."""
+    if not args.pseudonymize:
+        return None
+    if not args.key_file:
+        return PseudonymKey.new()  # codes of this run only: the key is not kept
+    return check_key_path(Path(args.key_file), _key_inputs(args, inputs), Path(args.out))
+
+
+def _coded(
+    graph: nx.Graph,
+    attributes: dict[str, Any] | None,
+    source: dict[str, Any],
+    key: PseudonymKey,
+    prefix: str,
+) -> tuple[nx.Graph, dict[str, Any] | None, dict[str, Any], dict[str, str]]:
+    """Graph, attributes and source record with every name replaced by its code."""
+    from .privacy import pseudonymize, pseudonymize_attributes
+
+    graph, codes = pseudonymize(graph, key, prefix)
+    if attributes is not None:
+        attributes, codes, _ = pseudonymize_attributes(attributes, codes, key, prefix)
+    source = {**source, "file": WITHHELD}
+    if "nodes_file" in source:
+        source["nodes_file"] = WITHHELD
+    source.pop("lookalike_example", None)  # names, which the codes replace
+    source.pop("nodes_lookalike_example", None)
+    return graph, attributes, source, codes
 
 
 def _removed_members(args: argparse.Namespace, graph: nx.Graph) -> list[Any]:
@@ -102,10 +115,6 @@ def report(args: argparse.Namespace) -> None:
     config = load_config(args.config).with_seed(args.seed)
     if args.min_group_size < 1:
         raise InputError(f"--min-group-size must be 1 or more. Got {args.min_group_size}.")
-    if args.key_file and not args.pseudonymize:
-        raise InputError(
-            "--key-file only makes sense with --pseudonymize; add it or drop --key-file."
-        )
     inputs = [Path(args.edges)] + ([Path(args.nodes)] if args.nodes else [])
     # Refuses a bad target before the work: see roles.output.
     out = OutputFolder(
@@ -114,8 +123,7 @@ def report(args: argparse.Namespace) -> None:
         command="report",
         expected=REPORT_FILES,
     )
-    if args.key_file:
-        _check_key_file(Path(args.key_file), inputs, Path(args.out))
+    key = _key(args, inputs)
     net = _load(args)
     graph = net.graph
     attributes = None
@@ -134,19 +142,12 @@ def report(args: argparse.Namespace) -> None:
         if table.lookalikes:
             source["nodes_lookalike_example"] = [shown_name(n) for n in table.lookalikes[0]]
     remove = _removed_members(args, graph)  # unknown names stop the run before any work
-    key = None
-    if args.pseudonymize:
-        prefix = {"organisation": "P", "supply": "F"}.get(args.kind, "M")
-        graph, key = pseudonymize(graph, prefix)
-        if attributes is not None:
-            back = {v: k for k, v in key.items()}
-            attributes = {back[n]: a for n, a in attributes.items() if n in back}
-        source["file"] = "(name withheld)"
-        if remove:
-            codes = {name: code for code, name in key.items()}
-            remove = [codes[str(v)] for v in remove]
-        source.pop("lookalike_example", None)  # names, which the codes replace
-        source.pop("nodes_lookalike_example", None)
+    codes: dict[str, str] = {}
+    if key is not None:
+        graph, attributes, source, codes = _coded(
+            graph, attributes, source, key, _PREFIX.get(args.kind, "M")
+        )
+        remove = [codes[str(v)] for v in remove]
     bar = StageBar() if not args.quiet else None
     result = run(
         graph,
@@ -171,10 +172,9 @@ def report(args: argparse.Namespace) -> None:
             made=made,
             pseudonymized=bool(args.pseudonymize),
         )
-    if key is not None and args.key_file:
-        from .output import write_csv
-
-        write_csv(Path(args.key_file), ["code", "name"], sorted(key.items()))
+        if key is not None and args.key_file:
+            # Inside the block: a key that cannot be written leaves no report behind.
+            write_key(Path(args.key_file), key, codes)
     if bar:
         bar.close()
     log.info("wrote %s", Path(args.out) / "report.pdf")
@@ -194,17 +194,25 @@ def embed(args: argparse.Namespace) -> None:
         command="embed",
         expected=["local.csv", "far.csv", "summary.json", *walks],
     )
+    inputs = [Path(args.edges)]
+    key = _key(args, inputs)
     net = _load(args)
     if net.graph.number_of_edges() == 0:
         raise InputError("the network has no ties; nothing to embed.", path=str(args.edges))
-    csr = to_csr(net.graph)
+    graph, source = net.graph, _source_info(net)
+    codes: dict[str, str] = {}
+    if key is not None:
+        graph, _, source, codes = _coded(graph, None, source, key, "M")
+    csr = to_csr(graph)
     if not args.quiet:
         log.info("… walks and embedding")
     views = embed_views(csr, config, keep_walks=args.keep_walks)
     with out as folder:
         write_embed_outputs(
-            csr, views, folder, config=config, source=_source_info(net), keep_walks=args.keep_walks
+            csr, views, folder, config=config, source=source, keep_walks=args.keep_walks
         )
+        if key is not None and args.key_file:
+            write_key(Path(args.key_file), key, codes)
     log.info("wrote %s", Path(args.out))
 
 
@@ -245,10 +253,6 @@ def compare(args: argparse.Namespace) -> None:
             "--nodes takes one file for both snapshots, or two (the first for OLD, the "
             f"second for NEW). Got {len(nodes)}."
         )
-    if args.key_file and not args.pseudonymize:
-        raise InputError(
-            "--key-file only makes sense with --pseudonymize; add it or drop --key-file."
-        )
     node_files = nodes * 2 if len(nodes) == 1 else nodes or [None, None]
     inputs = [Path(args.old), Path(args.new)] + [Path(n) for n in nodes]
     out = OutputFolder(
@@ -257,33 +261,23 @@ def compare(args: argparse.Namespace) -> None:
         command="compare",
         expected=COMPARE_FILES,
     )
-    if args.key_file:
-        _check_key_file(Path(args.key_file), inputs, Path(args.out))
+    key = _key(args, inputs)
     snaps = [_snapshot(e, n, args) for e, n in zip((args.old, args.new), node_files, strict=True)]
     union = nx.Graph()
     for g, _, _ in snaps:
         union.add_nodes_from(g)
     # One removal scenario for both snapshots; a name must be in at least one of them.
     remove = [str(v) for v in _removed_members(args, union)]
-    key = None
-    if args.pseudonymize:
-        # One key for both snapshots, so that a member keeps its code across them.
-        prefix = {"organisation": "P", "supply": "F"}.get(args.kind, "M")
-        _, key = pseudonymize(union, prefix)
-        codes = {name: code for code, name in key.items()}
+    codes: dict[str, str] = {}
+    if key is not None:
+        # One key and one set of codes for both snapshots: a member keeps its code.
+        prefix = _PREFIX.get(args.kind, "M")
+        union_codes = codes_for((str(n) for n in union), key, prefix)
+        key = PseudonymKey(key.secret, {**key.known, **{c: n for n, c in union_codes.items()}})
+        coded = [_coded(g, attrs, src, key, prefix) for g, attrs, src in snaps]
+        snaps = [(g, attrs, src) for g, attrs, src, _ in coded]
+        codes = {n: c for *_, part in coded for n, c in part.items()}
         remove = [codes[n] for n in remove]
-        snaps = [
-            (
-                nx.relabel_nodes(g, codes, copy=True),
-                {codes[n]: a for n, a in attrs.items() if n in codes} if attrs else None,
-                {
-                    **src,
-                    "file": "(name withheld)",
-                    **({"nodes_file": "(name withheld)"} if "nodes_file" in src else {}),
-                },
-            )
-            for g, attrs, src in snaps
-        ]
     bar = StageBar() if not args.quiet else None
     results = []
     for label, (graph, attributes, source) in zip(("before", "after"), snaps, strict=True):
@@ -340,10 +334,8 @@ def compare(args: argparse.Namespace) -> None:
             pseudonymized=bool(args.pseudonymize),
         )
         render_changes(folder, context)
-    if key is not None and args.key_file:
-        from .output import write_csv
-
-        write_csv(Path(args.key_file), ["code", "name"], sorted(key.items()))
+        if key is not None and args.key_file:
+            write_key(Path(args.key_file), key, codes)
     if bar:
         bar.close()
     log.info("wrote %s", Path(args.out) / "report.pdf")

@@ -429,6 +429,10 @@ def write_report_outputs(
     table = result.nodes
     write_csv(folder / "nodes.csv", list(table.columns), _csv_rows(table))
     summary = dict(result.summary)
+    if isinstance(summary.get("formal"), Mapping):
+        from .privacy import suppress_small_groups
+
+        summary["formal"] = suppress_small_groups(summary["formal"], min_group_size)
     summary["report"] = {
         "title": title,
         "kind": kind,

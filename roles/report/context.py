@@ -27,6 +27,10 @@ TOP = 12
 TOP_COMMUNITIES = 12
 #: Circles on the community map; the rest are drawn as one "others" circle.
 MAP_CIRCLES = 15
+#: "Look at these first" says a member carries much of the traffic only when at least
+#: this share of the shortest paths between others runs through it (betweenness; our
+#: choice, one path in twenty). In the supplier demo the largest share is 0.0024.
+TRAFFIC_FLOOR = 0.05
 
 _BASE = {
     "member": "member",
@@ -266,6 +270,7 @@ def _row(t: pd.DataFrame, name: str) -> dict[str, Any]:
         "local_group": int(r.local_group),
         "far_group": int(r.far_group),
         "p": float(r.participation),
+        "b": float(r.betweenness),
     }
     return out
 
@@ -327,15 +332,16 @@ def _roles(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
             annotate=annotate,
             words=v,
         )
-    from ..measures import BRIDGE_P, BRIDGE_SHARE, HUB_Z
+    from ..measures import BRIDGE_SHARE, HUB_Z
 
     return {
         "hub_z": _fmt(HUB_Z, 1),
-        "bridge_p": _fmt(BRIDGE_P),
         "bridge_share": _fmt(100 * BRIDGE_SHARE, 0),
         "withheld": _withheld_words(withheld, v) if withheld else None,
         "traffic": traffic,
         "n_traffic": len(traffic_all),
+        "traffic_small": bool(traffic) and traffic[0]["b"] < TRAFFIC_FLOOR,
+        "traffic_floor": _fmt(TRAFFIC_FLOOR),
         "bridges": bridges,
         "hubs": hubs,
         "peripheral": peripheral,
@@ -634,6 +640,7 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
         "inward": inward[0] if inward else None,
         "outward": outward[0] if outward else None,
         "tested": bool(verdict),
+        "all_inward": len(inward) >= 2 and len(inward) == len(ei_rows),
         "no_inside": any(r["verdict"] == "no inside ties" for r in ei_rows),
         "hidden": len(hidden),
         "shown": len(shown),
@@ -837,7 +844,8 @@ def _first_looks(
             f"{v['member'] if n == 1 else v['members']}{names}"
             + (" from every source of supply" if ctx["s"]["directed"] else "")
             + (
-                f"; each of them has a single recorded {v['tie']}, so check the records first"
+                f"; {'each of them has' if n != 1 else 'that one has'} a single recorded "
+                f"{v['tie']}, so check the records first"
                 if d.get("one_tie_each")
                 else ""
             )
@@ -847,7 +855,7 @@ def _first_looks(
 
     if solid:
         out.append(spof_item(solid[0]))
-    bridges = ctx["roles"]["bridges"]
+    bridges = [b for b in ctx["roles"]["bridges"][:1] if b["b"] >= TRAFFIC_FLOOR]
     if bridges:
         b = bridges[0]
         reach = b.get("reaches") or []
@@ -865,7 +873,7 @@ def _first_looks(
                 "where": "section 3",
             }
         )
-    traffic = ctx["roles"]["traffic"]
+    traffic = [t for t in ctx["roles"]["traffic"][:1] if t["b"] >= TRAFFIC_FLOOR]
     if ctx["roles"]["withheld"] and traffic:
         t = traffic[0]
         out.append(
@@ -905,9 +913,14 @@ def _first_looks(
         out.append(
             {
                 "who": g["label"],
-                "text": f"more inward-looking than its size predicts (E-I index {g['ei']} "
-                f"against {g['expected']} if {v['ties']} ignored the {formal['attribute']}): "
-                "is that by design?",
+                "text": (
+                    f"every {formal['attribute']} keeps clearly more {v['ties']} inside than "
+                    "its size predicts, this one most"
+                    if formal["all_inward"]
+                    else "more inward-looking than its size predicts"
+                )
+                + f" (E-I index {g['ei']} against {g['expected']} if {v['ties']} ignored the "
+                f"{formal['attribute']}): is that by design?",
                 "where": "section 2",
             }
         )

@@ -241,3 +241,63 @@ def test_group_hubs_ranked_by_z_unchanged():
     G.add_edge(0, 11)
     comm = {v: 0 if v <= 10 else 1 for v in G}
     assert rank_hubs(role_table(G, comm)) == [0]
+
+
+# ------------------------------------------------------------ first-page wording
+
+
+def _ctx(deps, *, formal=None, withheld=None, traffic=(), bridges=(), hubs=()):
+    return {
+        "dependencies": {"rows": deps},
+        "s": {"directed": False},
+        "roles": {
+            "bridges": list(bridges),
+            "hubs": list(hubs),
+            "traffic": list(traffic),
+            "withheld": withheld,
+        },
+        "formal": formal,
+        "no_groups": False,
+    }
+
+
+def _dep(node, n, thin):
+    return {"node": node, "dependents": n, "cut_off": "x", "one_tie_each": thin}
+
+
+def test_single_tie_case_never_stands_alone_first():
+    from roles.report.context import VOCABULARY, _first_looks
+
+    v = VOCABULARY["organisation"]
+    alone = _first_looks(_ctx([_dep("A", 1, True)]), v, True)
+    assert alone == []
+    hub = {"node": "H", "community": 1, "degree": 30}
+    with_hub = _first_looks(_ctx([_dep("A", 1, True)], hubs=[hub]), v, True)
+    assert [i["who"] for i in with_hub] == ["H", "A"]
+    assert "single recorded working tie" in with_hub[1]["text"]
+    solid = _first_looks(_ctx([_dep("A", 1, True), _dep("B", 4, False)]), v, True)
+    assert [i["who"] for i in solid] == ["B", "A"]  # the solid case first
+
+
+def test_first_page_names_traffic_only_when_large_and_people_are_not_it():
+    from roles.report.context import TRAFFIC_FLOOR, VOCABULARY, _first_looks
+
+    v = VOCABULARY["organisation"]
+    why = {"reason": "structure not clear"}
+    small = {"node": "T", "b": TRAFFIC_FLOOR / 20, "betweenness": "0.002"}
+    assert _first_looks(_ctx([], withheld=why, traffic=[small]), v, False)[0]["who"] == ""
+    big = {"node": "T", "b": 0.3, "betweenness": "0.300"}
+    items = _first_looks(_ctx([], withheld=why, traffic=[big]), v, False)
+    assert items[0]["who"] == "T" and "through them" in items[0]["text"]
+    assert not any(" it " in i["text"] for i in items)
+
+
+def test_e_i_headline_only_for_groups_that_differ_from_their_size():
+    from roles.report.context import VOCABULARY, _first_looks
+
+    v = VOCABULARY["organisation"]
+    formal = {"attribute": "department", "inward": None, "all_inward": False}
+    assert _first_looks(_ctx([], formal=formal), v, True) == []
+    g = {"label": "Design", "ei": "-0.73", "expected": "0.81"}
+    items = _first_looks(_ctx([], formal={**formal, "inward": g}), v, True)
+    assert items[0]["who"] == "Design" and "0.81" in items[0]["text"]

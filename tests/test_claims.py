@@ -301,3 +301,22 @@ def test_e_i_headline_only_for_groups_that_differ_from_their_size():
     g = {"label": "Design", "ei": "-0.73", "expected": "0.81"}
     items = _first_looks(_ctx([], formal={**formal, "inward": g}), v, True)
     assert items[0]["who"] == "Design" and "0.81" in items[0]["text"]
+
+
+def test_snapshot_changes_skip_withheld_roles():
+    from types import SimpleNamespace
+
+    from roles.snapshots import _role_changes
+
+    nodes = pd.DataFrame({"node": ["a", "b"], "within_z": [3.0, 0.0], "betweenness": [0.5, 0]})
+    clear = SimpleNamespace(nodes=nodes, summary={"hubs": ["a"], "bridges": ["a"]})
+    withheld = SimpleNamespace(
+        nodes=nodes, summary={"hubs": [], "bridges": [], "roles_withheld": {"reason": "no groups"}}
+    )
+    assert {c.role for c in _role_changes(clear, clear)} == set()
+    assert _role_changes(clear, withheld) == ()  # not "stopped being hub-like"
+    gone = SimpleNamespace(nodes=nodes, summary={"hubs": [], "bridges": []})
+    assert {(c.role, c.change) for c in _role_changes(clear, gone)} == {
+        ("hub-like", "stopped"),
+        ("bridge-like", "stopped"),
+    }

@@ -45,6 +45,8 @@ __all__ = [
     "role_table",
     "rank_bridges",
     "rank_hubs",
+    "rank_traffic",
+    "high_betweenness",
 ]
 
 #: Largest node count for exact betweenness. Compiled Brandes (this module) on
@@ -59,13 +61,20 @@ EXACT_LIMIT = 5000
 #: Hub threshold on the within-community degree z-score (Guimera & Amaral 2005).
 HUB_Z = 2.5
 
-#: A bridge-like node must have participation coefficient above this (our choice: the
-#: published boundary between hubs whose ties stay home and connector hubs, 0.30).
+#: Participation coefficient above which a node's ties count as spread over several
+#: communities (the published boundary between hubs whose ties stay home and connector
+#: hubs, 0.30). Kept for the role map and the report's wording; the bridge-like rule
+#: itself asks only for one tie outside the node's community (see :func:`role_table`).
 BRIDGE_P = 0.30
 
 #: A bridge-like node must be among this share of nodes with the most betweenness
-#: (our choice; the top decile is common practice for "high" centrality).
+#: (our choice; the top decile is common practice for "high" centrality). Nodes whose
+#: betweenness equals the value at the cut (to a relative 1e-9) are all included.
 BRIDGE_SHARE = 0.10
+
+# Betweenness values within this relative distance count as equal: sums of the same
+# path counts taken in another order differ in the last bits.
+_EQUAL = 1e-9
 
 # Comparisons against the published region bounds allow for rounding in P.
 _TOL = 1e-9
@@ -1318,7 +1327,6 @@ def role_table(
     seed: int = 0,
     weight: str | None = "weight",
     bridge_share: float = BRIDGE_SHARE,
-    bridge_p: float = BRIDGE_P,
 ) -> pd.DataFrame:
     """All role measures of every node, its role region and a plain-language role.
 
@@ -1336,8 +1344,6 @@ def role_table(
         Tie strength attribute, used by every measure (see each function).
     bridge_share : float, default 0.10
         Share of nodes, by betweenness, that count as carrying much traffic.
-    bridge_p : float, default 0.30
-        Participation coefficient a bridge-like node must exceed.
 
     Returns
     -------
@@ -1351,9 +1357,15 @@ def role_table(
     ``role`` is decided by two tests:
 
     - *hub*: within-community z-score >= 2.5 (Guimera & Amaral 2005);
-    - *bridge*: betweenness among the top ``bridge_share`` of nodes (ties at the cut
-      included, zero never counts) **and** P > ``bridge_p``. A node whose ties all stay
-      inside its community has P = 0 and is never bridge-like, however central.
+    - *bridge*: betweenness among the top ``bridge_share`` of nodes
+      (:func:`high_betweenness`: every node equal to the value at the cut included, zero
+      never counts) **and** at least one tie to another community (P > 0). Betweenness
+      (Freeman 1977) counts the shortest paths through the node; a node of the top
+      share that also touches another community is one through which traffic between
+      communities can run, however few its outside ties: in a ring of cliques each
+      member holding the one tie to the next clique has P = 0.28 (clique size 6) and
+      the highest betweenness. A node whose ties all stay inside its community has
+      P = 0 and is never bridge-like, however central.
 
     Labels: ``"connector hub"`` (both tests), ``"hub-like"`` (hub only),
     ``"bridge-like"`` (bridge only), ``"peripheral"`` (neither, and a single
@@ -1375,14 +1387,11 @@ def role_table(
     c, e = _structural_holes(ties)
     dep = dependents(G)
     neighbours = np.diff(_symmetric(ties)[0])
-    cut = np.inf
-    if ties.n:
-        rank = max(1, math.ceil(bridge_share * ties.n))
-        cut = float(np.sort(b)[::-1][rank - 1])
-    high = (b >= cut) & (b > 0)
+    high = _high(b, bridge_share)
+    outside = _outside_ties(ties, codes) > 0
     region = [role_region(zi, pi) for zi, pi in zip(z, P, strict=True)]
     role = [
-        _label(bool(z[i] >= HUB_Z - _TOL), bool(high[i] and P[i] > bridge_p), int(k))
+        _label(bool(z[i] >= HUB_Z - _TOL), bool(high[i] and outside[i]), int(k))
         for i, k in enumerate(neighbours)
     ]
     table = pd.DataFrame(
@@ -1400,6 +1409,55 @@ def role_table(
     )
     table.attrs["betweenness"] = info
     return table
+
+
+def _high(b: np.ndarray, share: float) -> np.ndarray:
+    if b.size == 0:
+        return np.zeros(0, dtype=bool)
+    rank = max(1, math.ceil(share * b.size))
+    cut = float(np.sort(b)[::-1][rank - 1])
+    return (b >= cut - _EQUAL * abs(cut)) & (b > 0)
+
+
+def _outside_ties(ties: _Ties, codes: np.ndarray) -> np.ndarray:
+    """Weight of each node's ties to members of other communities."""
+    if ties.n == 0:
+        return np.zeros(0)
+    node, comm, k_is = _by_community(ties, codes)
+    away = comm != codes[node]
+    return np.bincount(node[away], weights=k_is[away], minlength=ties.n)
+
+
+def high_betweenness(
+    betweenness: Mapping[Any, float], share: float = BRIDGE_SHARE
+) -> dict[Hashable, bool]:
+    """Whether each node is among the ``share`` of nodes with the most betweenness.
+
+    The cut is the betweenness of the node ranked ``ceil(share * n)``; every node whose
+    value equals it (to a relative 1e-9) is included too, so nodes with equal scores are
+    treated alike, and a betweenness of 0 never counts. The top decile is common
+    practice for "high" centrality, not a published threshold.
+
+    Parameters
+    ----------
+    betweenness : mapping
+        Node -> betweenness (:func:`betweenness`).
+    share : float, default BRIDGE_SHARE
+        Share of nodes to keep before ties at the cut are added.
+
+    Returns
+    -------
+    dict
+        Node -> bool.
+
+    Examples
+    --------
+    >>> high_betweenness({"a": 0.5, "b": 0.5, "c": 0.1, "d": 0.0}, share=0.25)
+    {'a': True, 'b': True, 'c': False, 'd': False}
+    """
+    nodes = list(betweenness)
+    b = np.fromiter((float(betweenness[v]) for v in nodes), dtype=np.float64, count=len(nodes))
+    return dict(zip(nodes, _high(b, share).tolist(), strict=True))
 
 
 def _ranked(table: pd.DataFrame, roles: tuple[str, ...], keys: list[str], top: int | None):
@@ -1450,3 +1508,34 @@ def rank_hubs(table: pd.DataFrame, top: int | None = None) -> list[Hashable]:
         Node names.
     """
     return _ranked(table, _HUB_ROLES, ["within_z", "betweenness"], top)
+
+
+def rank_traffic(table: pd.DataFrame, share: float = BRIDGE_SHARE) -> list[Hashable]:
+    """Nodes that carry an outsized share of shortest paths, most first.
+
+    The nodes of :func:`high_betweenness` (top ``share`` by betweenness, equal values at
+    the cut included, zero never), ordered by betweenness descending; equal values keep
+    the table's (graph) order. Unlike the role labels, this list does not depend on the
+    communities.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        A :func:`role_table` (only its ``betweenness`` column is read).
+    share : float, default BRIDGE_SHARE
+        Share of nodes to keep before ties at the cut are added.
+
+    Returns
+    -------
+    list
+        Node names.
+
+    References
+    ----------
+    .. [1] L. C. Freeman, "A set of measures of centrality based on betweenness",
+       Sociometry 40:35-41, 1977.
+    """
+    b = table["betweenness"].to_numpy(dtype=np.float64)
+    picked = table[_high(b, share)]
+    order = picked.sort_values("betweenness", ascending=False, kind="mergesort")
+    return list(order.index)

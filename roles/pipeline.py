@@ -201,6 +201,10 @@ def _sampled_fit_note(groupings: Mapping[str, Grouping], n_rows: int) -> str | N
     )
 
 
+def _round(x: float) -> float | None:
+    return round(float(x), 4) if np.isfinite(x) else None
+
+
 def _betweenness_info(table: pd.DataFrame) -> dict[str, Any]:
     import dataclasses
 
@@ -363,7 +367,8 @@ def run(
     2
     """
     from .embed import embed_views_then
-    from .measures import rank_bridges, rank_hubs, role_table
+    from .findings import roles_withheld, single_points
+    from .measures import rank_bridges, rank_hubs, rank_traffic, role_table
 
     config = config or Config()
     if graph.number_of_nodes() == 0:
@@ -537,7 +542,7 @@ def run(
 
     extras: dict[str, Any] = {}
     if group_by:
-        from .formal import brokerage, crosstab, ei_index, formal_nmi
+        from .formal import brokerage, crosstab, ei_index, ei_test, formal_nmi
 
         # Members with no value in the column belong to no formal group.
         groups = {
@@ -554,11 +559,25 @@ def run(
                 "attribute": group_by,
                 "nmi": formal_nmi(groups, tied),
                 "ei_index": ei_index(graph, groups),
+                # 999 label permutations, fewer on large networks (at least 99, the
+                # fewest that can reach p = 0.01): about 2e7 tie visits in all.
+                "ei_test": ei_test(
+                    graph,
+                    groups,
+                    permutations=min(999, max(99, 20_000_000 // max(graph.number_of_edges(), 1))),
+                    seed=config.seed,
+                ),
                 "crosstab": crosstab(groups, tied),
             }
 
-    bridges = rank_bridges(table)
-    hubs = rank_hubs(table)
+    grouped = groupings[community_view].n_groups > 0
+    withheld = roles_withheld(grouped, confidence.structure if confidence is not None else None)
+    bridges = [] if withheld else rank_bridges(table)
+    hubs = [] if withheld else rank_hubs(table)
+    if withheld:
+        # Hub-like and bridge-like are read against the communities: not findings here.
+        nodes.loc[nodes.role.isin(["hub-like", "bridge-like", "connector hub"]), "role"] = "member"
+    traffic = rank_traffic(table)
     with timer.stage("what if"):
         from .whatif import assess as what_if
 
@@ -571,7 +590,6 @@ def run(
             remove=remove,
             seed=stage_seeds(config.seed, 9)[8],
         )
-    grouped = groupings[community_view].n_groups > 0
     n_comm = int(communities.max())
     summary: dict[str, Any] = {
         "nodes": n,
@@ -592,11 +610,9 @@ def run(
         },
         "bridges": [str(b) for b in bridges],
         "hubs": [str(h) for h in hubs],
-        "single_points_of_failure": [
-            {"node": str(r.node), "dependents": int(r.dependents)}
-            for r in nodes.sort_values("dependents", ascending=False).itertuples()
-            if r.dependents > 0
-        ][:50],
+        "roles_withheld": withheld,
+        "traffic": [str(v) for v in traffic],
+        "single_points_of_failure": single_points(graph, nodes),
         "views": {
             "ari": comparison.ari if comparison else None,
             "nmi": comparison.nmi if comparison else None,
@@ -632,6 +648,9 @@ def run(
             "attribute": f["attribute"],
             "nmi": round(f["nmi"], 4),
             "ei_index": {k: round(v, 4) for k, v in f["ei_index"].items()},
+            "ei_expected": {str(k): _round(r.expected) for k, r in f["ei_test"].iterrows()},
+            "ei_p_value": {str(k): _round(r.p_value) for k, r in f["ei_test"].iterrows()},
+            "ei_verdict": {str(k): str(r.verdict) for k, r in f["ei_test"].iterrows()},
             "crosstab": {
                 str(k): {str(c): int(v) for c, v in row.items()}
                 for k, row in f["crosstab"].iterrows()

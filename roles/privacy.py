@@ -291,7 +291,7 @@ def suppress_small_groups(formal: Mapping[str, Any], min_size: int) -> dict[str,
     if merged:
         kept["other"] = other
     out["crosstab"] = kept
-    for field in ("ei_index", "ei_expected", "ei_excess"):
+    for field in ("ei_index", "ei_expected", "ei_p_value", "ei_verdict"):
         if isinstance(formal.get(field), Mapping):
             out[field] = {g: v for g, v in formal[field].items() if g not in small}
     out["small_groups"] = {

@@ -483,10 +483,14 @@ def _spof(summary: Mapping[str, Any]) -> dict[str, float]:
 def _role_changes(old: Any, new: Any) -> tuple[RoleChange, ...]:
     """Hub-like, bridge-like and single points of failure that appeared or ended."""
     out: list[RoleChange] = []
-    lists = (
+    lists: tuple[tuple[str, str, str], ...] = (
         ("hub-like", "hubs", "within_z"),
         ("bridge-like", "bridges", "betweenness"),
     )
+    # Hub-like and bridge-like are not stated for a snapshot whose communities are not
+    # clear (summary "roles_withheld"): no change of them can be read across it.
+    if old.summary.get("roles_withheld") or new.summary.get("roles_withheld"):
+        lists = ()
     for role, key, figure in lists:
         a = {str(x) for x in old.summary.get(key, [])}
         b = {str(x) for x in new.summary.get(key, [])}

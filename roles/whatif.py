@@ -34,6 +34,7 @@ __all__ = [
     "check_members",
     "what_if",
     "what_if_many",
+    "cut_off_each",
     "robustness",
     "default_removals",
     "assess",
@@ -639,6 +640,43 @@ def what_if_many(
     for nodes in removals:
         members = check_members(graph, [str(v) for v in nodes], option="remove")
         out.append(net.scenario([net.index[v] for v in members]))
+    return out
+
+
+def cut_off_each(graph: nx.Graph, members: Sequence[Hashable]) -> dict[str, tuple[str, ...]]:
+    """Who each member's removal alone would cut off, by the rule of :func:`what_if`.
+
+    Parameters
+    ----------
+    graph : networkx.Graph or networkx.DiGraph
+        Directed ties point from supplier to customer.
+    members : sequence
+        Members to remove one at a time (matched by ``str(node)``).
+
+    Returns
+    -------
+    dict
+        ``str(member)`` -> the names cut off by its removal, sorted.
+
+    Raises
+    ------
+    InputError
+        When a name is not a member of the graph.
+
+    Examples
+    --------
+    >>> import networkx as nx
+    >>> cut_off_each(nx.krackhardt_kite_graph(), [7, 8])
+    {'7': ('8', '9'), '8': ('9',)}
+    """
+    net = _Network(graph, None, seed=0, efficiency_work=0)
+    checked = check_members(graph, [str(v) for v in members], option="member")
+    out: dict[str, tuple[str, ...]] = {}
+    for v in checked:
+        alive = np.ones(net.n, dtype=np.bool_)
+        r = np.asarray([net.index[v]], dtype=np.int64)
+        alive[r] = False
+        out[str(v)] = tuple(sorted(net.names[i] for i in net._cut_off(alive, r)))
     return out
 
 

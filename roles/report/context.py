@@ -27,6 +27,10 @@ TOP = 12
 TOP_COMMUNITIES = 12
 #: Circles on the community map; the rest are drawn as one "others" circle.
 MAP_CIRCLES = 15
+#: "Look at these first" says a member carries much of the traffic only when at least
+#: this share of the shortest paths between others runs through it (betweenness; our
+#: choice, one path in twenty). In the supplier demo the largest share is 0.0024.
+TRAFFIC_FLOOR = 0.05
 
 _BASE = {
     "member": "member",
@@ -44,6 +48,8 @@ _BASE = {
     "downstream": "downstream",
     "if_lost": "if removed",
     "hub_text": "many ties meet at this one member",
+    "its": "its",
+    "it": "it",
     "periphery": "a member at the edge of the network, or ties that were not recorded",
 }
 
@@ -63,6 +69,8 @@ VOCABULARY: dict[str, dict[str, str]] = {
         "network": "organisation",
         "if_lost": "if unavailable",
         "hub_text": "much of the team's work may run through this one person",
+        "its": "their",
+        "it": "them",
         "periphery": "a newcomer, a specialist, part-time work or simply working ties that "
         "were not recorded",
     },
@@ -262,6 +270,7 @@ def _row(t: pd.DataFrame, name: str) -> dict[str, Any]:
         "local_group": int(r.local_group),
         "far_group": int(r.far_group),
         "p": float(r.participation),
+        "b": float(r.betweenness),
     }
     return out
 
@@ -295,6 +304,9 @@ def _roles(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
     for r in bridges:
         r["reaches"] = _neighbour_communities(result, r["node"], r["community"])[:3]
     hubs = [_row(t, n) for n in s["hubs"][:TOP]]
+    traffic_all = s.get("traffic", [])
+    traffic = [_row(t, n) for n in traffic_all[:TOP]]
+    withheld = s.get("roles_withheld")
     periph_all = connected[connected.role == "peripheral"].sort_values(
         ["degree", "participation"], kind="stable"
     )
@@ -311,7 +323,7 @@ def _roles(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
     pos = {n: i for i, n in enumerate(names)}
     annotate = [pos[n] for n in (s["hubs"][:3] + s["bridges"][:3]) if n in pos]
     figure = None
-    if len(connected) and result.summary.get("communities", 0) >= 2:
+    if len(connected) and result.summary.get("communities", 0) >= 2 and not withheld:
         figure = figures.role_map(
             connected.within_z.to_numpy(dtype=float),
             connected.participation.to_numpy(dtype=float),
@@ -320,12 +332,16 @@ def _roles(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
             annotate=annotate,
             words=v,
         )
-    from ..measures import BRIDGE_P, BRIDGE_SHARE, HUB_Z
+    from ..measures import BRIDGE_SHARE, HUB_Z
 
     return {
         "hub_z": _fmt(HUB_Z, 1),
-        "bridge_p": _fmt(BRIDGE_P),
         "bridge_share": _fmt(100 * BRIDGE_SHARE, 0),
+        "withheld": _withheld_words(withheld, v) if withheld else None,
+        "traffic": traffic,
+        "n_traffic": len(traffic_all),
+        "traffic_small": bool(traffic) and traffic[0]["b"] < TRAFFIC_FLOOR,
+        "traffic_floor": _fmt(TRAFFIC_FLOOR),
         "bridges": bridges,
         "hubs": hubs,
         "peripheral": peripheral,
@@ -337,6 +353,33 @@ def _roles(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
     }
 
 
+def _withheld_words(withheld: Mapping[str, str], v: Mapping[str, str]) -> str:
+    """Why no member is called hub-like or bridge-like, in the report's words."""
+    if withheld.get("reason") == "no groups":
+        return (
+            f"no {v['communities']} were found, and hub-like and bridge-like only make sense "
+            f"relative to {v['communities']}"
+        )
+    return (
+        f"the {v['communities']} are not clearly stronger than in random networks (structure "
+        f"test), so hub-like and bridge-like, which are read against the {v['communities']}, "
+        "would rest on groups that may not be real"
+    )
+
+
+#: How many names of those cut off a sentence or table cell shows before a count.
+CUT_NAMES = 3
+
+
+def _cut_off_words(names: list[str]) -> str:
+    """'A, B and C', or 'A, B, C and 4 more'."""
+    if len(names) <= 1:
+        return "".join(names)
+    if len(names) <= CUT_NAMES:
+        return f"{', '.join(names[:-1])} and {names[-1]}"
+    return f"{', '.join(names[:CUT_NAMES])} and {len(names) - CUT_NAMES} more"
+
+
 # ---------------------------------------------------------------- dependencies
 
 
@@ -345,8 +388,12 @@ def _dependencies(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
 
     s = result.summary
     t = result.nodes.set_index("node")
-    worst = [d["node"] for d in s["single_points_of_failure"]][:TOP]
-    rows = [_row(t, n) for n in worst]
+    entries = s["single_points_of_failure"][:TOP]
+    rows = [_row(t, d["node"]) for d in entries]
+    for r, d in zip(rows, entries, strict=True):
+        r["cut_off"] = _cut_off_words(list(d.get("cut_off", [])))
+        r["n_cut_off"] = len(d.get("cut_off", []))
+        r["one_tie_each"] = bool(d.get("one_tie_each"))
     directed = bool(s["directed"])
     reach = None
     if directed and rows:
@@ -365,29 +412,35 @@ def _dependencies(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
             words=v,
         )
     total = int((result.nodes.dependents > 0).sum())
-    return {"rows": rows, "figure": figure, "count": total, "directed": directed}
+    thin = any(r["one_tie_each"] for r in rows)
+    return {"rows": rows, "figure": figure, "count": total, "directed": directed, "thin": thin}
 
 
 # ----------------------------------------------------------------------- views
 
 
-def _reading(r: Mapping[str, Any], moved: bool, grouped: bool) -> str:
+def _reading(r: Mapping[str, Any], moved: bool, grouped: bool, v: Mapping[str, str] = _BASE) -> str:
     """One line on what a low neighbour overlap usually means for this member."""
+    it, its = v["it"], v["its"]
     if not grouped:
         if r["degree"] <= 2:
-            return "few ties, so neither view places it firmly"
-        return "its nearest neighbours differ between the views"
+            return f"few ties, so neither view places {it} firmly"
+        return f"{its} nearest neighbours differ between the views"
     if moved and r["p"] >= 0.5:
         return "ties in several groups, and each view sides with another: a go-between"
     if moved:
-        return "its close circle lies in one group, its wider region in another"
+        return f"{its} close circle lies in one group, {its} wider region in another"
     if r["degree"] <= 2:
-        return "few ties, so neither view places it firmly"
+        return f"few ties, so neither view places {it} firmly"
     if r["membership_value"] < 0.5:
-        return "held loosely by its group: it sits near a boundary"
+        return "held loosely by the group: near a boundary"
     if r["role"] in ("bridge-like", "connector hub"):
-        return "a bridge: its close circle mixes several groups"
-    return "same group in both views, different neighbours: the edge of its group"
+        return f"a bridge: {its} close circle mixes several groups"
+    if r["role"] == "hub-like":
+        return f"a hub with many ties: each view weighs {its} wide circle differently"
+    if r["p"] > 0:
+        return f"same group in both views; ties to other groups change {its} nearest neighbours"
+    return f"same group in both views, different neighbours among {its} group-mates"
 
 
 def _matched(cont: np.ndarray) -> dict[int, int]:
@@ -426,7 +479,7 @@ def _views(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
         r = _row(t, name)
         r["membership_value"] = float(t.loc[name].membership)
         r["moved"] = bool(m)
-        r["reading"] = _reading(r, bool(m), both)
+        r["reading"] = _reading(r, bool(m), both, v)
         disagree.append(r)
     contingency = None
     if cont.ndim == 2 and cont.size and both:
@@ -504,15 +557,27 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
     hidden = [g for g in sizes if sizes[g] < min_group_size]
     ei = {str(g): float(x) for g, x in f.get("ei_index", {}).items() if str(g) in shown}
     attr = str(f["attribute"])
+    expected = f.get("ei_expected") or {}
+    verdict = f.get("ei_verdict") or {}
     ei_rows: list[dict[str, Any]] = [
         {
             "group": g,
             "label": f"{attr} {g}" if len(g) <= 3 else g,
             "size": sizes[g],
             "ei": _fmt(ei[g]),
+            "expected": _fmt(expected.get(g)),
+            "gap": ei[g] - float(expected[g]) if expected.get(g) is not None else 0.0,
+            "verdict": str(verdict.get(g, "")),
+            "reading": _EI_READING.get(str(verdict.get(g, "")), _ei_band(ei[g])),
         }
         for g in sorted(ei, key=lambda g: (ei[g], g))
     ]
+    # Headlines: only groups whose E-I index differs clearly from what their size
+    # predicts (roles.formal.ei_test), the largest gap first.
+    inward = sorted((r for r in ei_rows if r["verdict"] == "more inward"), key=lambda r: r["gap"])
+    outward = sorted(
+        (r for r in ei_rows if r["verdict"] == "more outward"), key=lambda r: -r["gap"]
+    )
     figure = None
     if shown and result.summary.get("communities", 0) >= 2:
         # Members without ties (community 0) are left out: in a small team such a cell
@@ -572,12 +637,32 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
         "nmi_words": _nmi_words(nmi) if np.isfinite(nmi) else "cannot be compared with it",
         "figure": figure,
         "ei": ei_rows,
-        "inward": ei_rows[0] if ei_rows and ei[str(ei_rows[0]["group"])] < 0 else None,
-        "outward": ei_rows[-1] if ei_rows and ei[str(ei_rows[-1]["group"])] > 0 else None,
+        "inward": inward[0] if inward else None,
+        "outward": outward[0] if outward else None,
+        "tested": bool(verdict),
+        "all_inward": len(inward) >= 2 and len(inward) == len(ei_rows),
+        "no_inside": any(r["verdict"] == "no inside ties" for r in ei_rows),
         "hidden": len(hidden),
         "shown": len(shown),
         "brokers": brokers,
     }
+
+
+_EI_READING = {
+    "more inward": "more inward-looking than its size predicts",
+    "more outward": "more outward-looking than its size predicts",
+    "as sizes predict": "as its size predicts",
+    "no inside ties": "no tie stays inside it (+1 by construction when ties only run "
+    "between groups, as between supply tiers)",
+    "no ties": "no ties",
+}
+
+
+def _ei_band(ei: float) -> str:
+    """Reading of an E-I index without its expected value (older summaries)."""
+    if not np.isfinite(ei):
+        return "no ties"
+    return "mostly inward" if ei < -0.33 else ("mostly outward" if ei > 0.33 else "mixed")
 
 
 def _cuts(cross: Mapping[str, Mapping[str, int]], shown: list[str]) -> list[dict[str, Any]]:
@@ -761,19 +846,32 @@ def _first_looks(
     """The two or three things to look at first, most urgent first."""
     out: list[dict[str, str]] = []
     deps = ctx["dependencies"]["rows"]
-    if deps:
-        d = deps[0]
-        out.append(
-            {
-                "who": d["node"],
-                "text": f"{v['if_lost']}, cuts off {d['dependents']} other "
-                f"{v['member'] if d['dependents'] == 1 else v['members']}"
-                + (" from every source of supply" if ctx["s"]["directed"] else "")
-                + ". Check whether there is a second route.",
-                "where": "section 4",
-            }
-        )
-    bridges = ctx["roles"]["bridges"]
+    # A single point of failure whose every cut-off member has one recorded tie rests on
+    # thin evidence: it never stands alone in this list.
+    solid = [d for d in deps if not d.get("one_tie_each")]
+    thin = [d for d in deps if d.get("one_tie_each")]
+
+    def spof_item(d: Mapping[str, Any]) -> dict[str, str]:
+        n = d["dependents"]
+        names = f" ({d['cut_off']})" if d.get("cut_off") else ""
+        return {
+            "who": d["node"],
+            "text": f"{v['if_lost']}, cuts off {n} other "
+            f"{v['member'] if n == 1 else v['members']}{names}"
+            + (" from every source of supply" if ctx["s"]["directed"] else "")
+            + (
+                f"; {'each of them has' if n != 1 else 'that one has'} a single recorded "
+                f"{v['tie']}, so check the records first"
+                if d.get("one_tie_each")
+                else ""
+            )
+            + ". Check whether there is a second route.",
+            "where": "section 4",
+        }
+
+    if solid:
+        out.append(spof_item(solid[0]))
+    bridges = [b for b in ctx["roles"]["bridges"][:1] if b["b"] >= TRAFFIC_FLOOR]
     if bridges:
         b = bridges[0]
         reach = b.get("reaches") or []
@@ -788,6 +886,18 @@ def _first_looks(
                 "who": b["node"],
                 "text": f"carries much of the traffic between {between}; ask what would "
                 f"happen to it without this one {v['member']}.",
+                "where": "section 3",
+            }
+        )
+    traffic = [t for t in ctx["roles"]["traffic"][:1] if t["b"] >= TRAFFIC_FLOOR]
+    if ctx["roles"]["withheld"] and traffic:
+        t = traffic[0]
+        out.append(
+            {
+                "who": t["node"],
+                "text": f"the largest share of shortest paths between other {v['members']} "
+                f"runs through {v['it']} (betweenness {t['betweenness']}); ask what would "
+                f"happen without this one {v['member']}.",
                 "where": "section 3",
             }
         )
@@ -819,8 +929,14 @@ def _first_looks(
         out.append(
             {
                 "who": g["label"],
-                "text": f"the most inward-looking {formal['attribute']} (E-I index {g['ei']}): "
-                f"most of its {v['ties']} stay inside it. Is that by design?",
+                "text": (
+                    f"every {formal['attribute']} keeps clearly more {v['ties']} inside than "
+                    "its size predicts, this one most"
+                    if formal["all_inward"]
+                    else "more inward-looking than its size predicts"
+                )
+                + f" (E-I index {g['ei']} against {g['expected']} if {v['ties']} ignored the "
+                f"{formal['attribute']}): is that by design?",
                 "where": "section 2",
             }
         )
@@ -834,6 +950,8 @@ def _first_looks(
                 "where": "section 3",
             }
         )
+    if thin and out and len(out) < 3:
+        out.append(spof_item(thin[0]))
     for item in out:
         if not item["who"]:
             item["text"] = item["text"][:1].upper() + item["text"][1:]

@@ -1,0 +1,81 @@
+"""Which role findings the report may state, and the single points of failure in full.
+
+Hub-like and bridge-like are read against the communities; :func:`roles_withheld`
+says when there is nothing to read them against. :func:`single_points` lists the
+members with dependents and names whom each would cut off.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+import networkx as nx
+import pandas as pd
+
+__all__ = ["roles_withheld", "single_points"]
+
+
+def roles_withheld(grouped: bool, structure: Any) -> dict[str, str] | None:
+    """Why hub-like and bridge-like members are not reported, or None when they are.
+
+    Both labels are read against the communities, so they are findings only when there
+    are communities and the structure test (when it ran) found them clear.
+
+    Parameters
+    ----------
+    grouped : bool
+        Whether the chosen view found any groups.
+    structure : StructureTest or None
+        The structure test of :mod:`roles.confidence`; None when it did not run.
+
+    Returns
+    -------
+    dict or None
+        ``{"reason": "no groups" | "structure not clear", "explanation": str}``.
+    """
+    if not grouped:
+        return {
+            "reason": "no groups",
+            "explanation": "no communities were found, and hub-like and bridge-like are "
+            "defined relative to communities",
+        }
+    if structure is not None and structure.tested and not structure.clear:
+        return {
+            "reason": "structure not clear",
+            "explanation": "the communities are not clearly stronger than in randomised "
+            f"networks with the same degrees (z = {structure.z:.2f}), and hub-like and "
+            "bridge-like are defined relative to communities",
+        }
+    return None
+
+
+def single_points(graph: nx.Graph, nodes: pd.DataFrame, top: int = 50) -> list[dict[str, Any]]:
+    """The ``top`` members with the most dependents, with whom each would cut off.
+
+    ``cut_off`` follows :func:`roles.whatif.what_if` (all names, sorted);
+    ``one_tie_each`` is True when every member cut off has a single recorded tie (one
+    neighbour, whatever the direction): thin evidence, as one missing record would
+    undo it.
+    """
+    from .whatif import cut_off_each
+
+    worst = nodes[nodes.dependents > 0].sort_values("dependents", ascending=False, kind="stable")
+    names = [str(v) for v in worst.node.head(top)]
+    cut = cut_off_each(graph, names)
+    und = graph.to_undirected(as_view=True) if graph.is_directed() else graph
+
+    def neighbours(v: str) -> int:
+        return sum(1 for w in und.adj[v] if w != v)
+
+    out = []
+    for v, d in zip(names, worst.dependents.head(top), strict=True):
+        gone = list(cut[v])
+        out.append(
+            {
+                "node": v,
+                "dependents": int(d),
+                "cut_off": gone,
+                "one_tie_each": bool(gone) and all(neighbours(w) == 1 for w in gone),
+            }
+        )
+    return out

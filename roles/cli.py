@@ -1,7 +1,8 @@
 """The ``roles`` command: parse options, call the pipeline, map errors to exit codes.
 
 Exit status: 0 success, 2 a problem with the input or options (one ``error:`` line),
-130 interrupted by Ctrl-C, 1 an unexpected internal error.
+130 interrupted by Ctrl-C (SIGINT), 143 stopped by SIGTERM, 1 an unexpected internal
+error.
 """
 
 from __future__ import annotations
@@ -12,6 +13,7 @@ import sys
 from pathlib import Path
 
 from .errors import RolesError
+from .workers import exit_status, signals_stop_run
 
 __all__ = ["main", "build_parser"]
 
@@ -133,17 +135,17 @@ class _Parser(argparse.ArgumentParser):
         self.exit(2, f"error: {message} (see '{self.prog} --help')\n")
 
 
-def _interrupted(exc: BaseException) -> bool:
-    """Whether ``exc`` is, or was caused by, Ctrl-C (an import cut short re-raises it
+def _interrupted(exc: BaseException) -> KeyboardInterrupt | None:
+    """The Ctrl-C or SIGTERM behind ``exc``, if any (an import cut short re-raises it
     as ImportError)."""
     seen: set[int] = set()
     cur: BaseException | None = exc
     while cur is not None and id(cur) not in seen:
         if isinstance(cur, KeyboardInterrupt):
-            return True
+            return cur
         seen.add(id(cur))
         cur = cur.__cause__ or cur.__context__
-    return False
+    return None
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -248,21 +250,23 @@ def main(argv: list[str] | None = None) -> int:
     log.propagate = False
     log.setLevel(logging.WARNING if args.quiet else logging.INFO)
     try:
-        _dispatch(args)
+        with signals_stop_run():
+            _dispatch(args)
     except RolesError as exc:
         if args.debug:
             raise
         print(f"error: {exc}", file=sys.stderr)
         return 2
     except BaseException as exc:
-        if args.debug or not _interrupted(exc):
+        stop = _interrupted(exc)
+        if args.debug or stop is None:
             raise
         print(
             "error: interrupted. The output folder holds either its earlier files or this "
             "run's complete outputs, never a mix.",
             file=sys.stderr,
         )
-        return 130
+        return exit_status(stop)
     return 0
 
 

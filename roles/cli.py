@@ -1,8 +1,8 @@
 """The ``roles`` command: parse options, call the pipeline, map errors to exit codes.
 
 Exit status: 0 success, 2 a problem with the input or options (one ``error:`` line),
-130 interrupted by Ctrl-C (SIGINT), 143 stopped by SIGTERM, 1 an unexpected internal
-error.
+130 interrupted by Ctrl-C (SIGINT), 143 stopped by SIGTERM, 1 out of memory (one
+``error:`` line) or an unexpected internal error (a traceback).
 """
 
 from __future__ import annotations
@@ -10,6 +10,7 @@ from __future__ import annotations
 import argparse
 import logging
 import sys
+from concurrent.futures.process import BrokenProcessPool
 from pathlib import Path
 
 from .errors import RolesError
@@ -75,6 +76,12 @@ def _add_input(p: argparse.ArgumentParser) -> None:
     p.add_argument("--quiet", action="store_true", help="print nothing but errors")
     p.add_argument(
         "--debug", action="store_true", help="on an error, show the full Python traceback too"
+    )
+    p.add_argument(
+        "--no-work-limit",
+        action="store_true",
+        help="run even when the estimated walks need more than half the memory or the "
+        "training would take over an hour (refused otherwise, before any work)",
     )
 
 
@@ -223,6 +230,7 @@ def _demo_args(args: argparse.Namespace) -> argparse.Namespace:
         pseudonymize=False,
         key_file=None,
         paper="a4",
+        no_work_limit=False,
     )
 
 
@@ -257,6 +265,21 @@ def main(argv: list[str] | None = None) -> int:
             raise
         print(f"error: {exc}", file=sys.stderr)
         return 2
+    except (MemoryError, BrokenProcessPool) as exc:
+        if args.debug:
+            raise
+        what = (
+            "ran out of memory"
+            if isinstance(exc, MemoryError)
+            else ("lost a worker process (the system may have run out of memory)")
+        )
+        print(
+            f"error: the run {what}. Lower walks_per_node or walk_length in [walks], or "
+            "dimensions in [embedding], or run on a machine with more memory. Nothing "
+            "was written.",
+            file=sys.stderr,
+        )
+        return 1
     except BaseException as exc:
         stop = _interrupted(exc)
         if args.debug or stop is None:

@@ -13,7 +13,7 @@ from typing import Any
 
 import networkx as nx
 
-from .config import load_config
+from .config import Config, load_config
 from .errors import InputError
 from .load import LoadedNetwork, load_edges, load_nodes
 from .output import OutputFolder
@@ -72,6 +72,20 @@ def _check_key_file(key: Path, inputs: list[Path], out: Path) -> None:
         )
 
 
+def _check_workload(
+    args: argparse.Namespace, n_nodes: int, config: Config, *, edges: int | None = None
+) -> None:
+    """Refuse a run past the work limits before it allocates anything
+    (:mod:`roles.workload`); with ``edges``, for the walks the report's budget leaves."""
+    from .workload import check_workload
+
+    if edges is not None:
+        from .budget import walk_budget
+
+        config = walk_budget(n_nodes, edges, config)[0]
+    check_workload(n_nodes, config, insist=bool(getattr(args, "no_work_limit", False)))
+
+
 def report(args: argparse.Namespace) -> None:
     """``roles report``: load, analyse, write report.pdf/html, nodes.csv, summary.json,
     graph.graphml."""
@@ -101,6 +115,7 @@ def report(args: argparse.Namespace) -> None:
         source["nodes_file"] = Path(args.nodes).name
         source["nodes_only_in_nodes_file"] = len(table.extra_nodes)
         source["nodes_missing_from_nodes_file"] = len(table.missing_nodes)
+    _check_workload(args, graph.number_of_nodes(), config, edges=graph.number_of_edges())
     key = None
     if args.pseudonymize:
         prefix = {"organisation": "P", "supply": "F"}.get(args.kind, "M")
@@ -152,6 +167,7 @@ def embed(args: argparse.Namespace) -> None:
     net = _load(args)
     if net.graph.number_of_edges() == 0:
         raise InputError("the network has no ties; nothing to embed.", path=str(args.edges))
+    _check_workload(args, net.graph.number_of_nodes(), config)
     csr = to_csr(net.graph)
     if not args.quiet:
         log.info("… walks and embedding")

@@ -14,6 +14,7 @@ import jinja2
 from .._resources import data_dir
 from ..pipeline import Result
 from .context import build_context
+from .names import printed_names
 
 __all__ = ["render_report", "render_html", "write_pdf", "template_dir"]
 
@@ -100,9 +101,12 @@ def render_report(
     made: str,
     pseudonymized: bool = False,
 ) -> None:
-    """Write ``report.html`` and ``report.pdf`` for ``result`` into ``folder``."""
+    """Write ``report.html`` and ``report.pdf`` for ``result`` into ``folder``.
+
+    Names longer than :data:`roles.report.names.NAME_LIMIT` are printed shortened.
+    """
     context = build_context(
-        result,
+        printed_names(result),
         title=title,
         kind=kind,
         paper=paper,

@@ -227,7 +227,8 @@ def _hard_exit(status: int) -> None:
     os._exit(status)
 
 
-def _on_signal(signum: int, frame: FrameType | None) -> None:
+def _begin_stop(signum: int) -> None:
+    """Kill the workers and arm the watchdog, once per process (from either path)."""
     with _lock:
         first = not _stopping
         _stopping.append(signum)
@@ -236,6 +237,10 @@ def _on_signal(signum: int, frame: FrameType | None) -> None:
         timer = threading.Timer(GRACE_SECONDS, _hard_exit, args=(128 + signum,))
         timer.daemon = True
         timer.start()
+
+
+def _on_signal(signum: int, frame: FrameType | None) -> None:
+    _begin_stop(signum)
     if signum == signal.SIGTERM:
         raise Terminated()
     raise KeyboardInterrupt()
@@ -255,8 +260,35 @@ def signals_stop_run() -> Iterator[None]:
     saved: dict[signal.Signals, Any] = {}
     for sig in (signal.SIGINT, signal.SIGTERM):
         saved[sig] = signal.signal(sig, _on_signal)
+    # Python runs signal handlers in the main thread, between bytecodes: not while that
+    # thread is inside compiled code. The interpreter's C-level handler also writes the
+    # signal number to this pipe at once, and a thread waiting on it starts the stop
+    # (workers killed, watchdog armed) as soon as it can run.
+    read_end, write_end = os.pipe()
+    os.set_blocking(write_end, False)
+    previous_fd = signal.set_wakeup_fd(write_end, warn_on_full_buffer=False)
+    watcher = threading.Thread(target=_watch_wakeups, args=(read_end,), daemon=True)
+    watcher.start()
     try:
         yield
     finally:
+        signal.set_wakeup_fd(previous_fd)
+        os.close(write_end)  # the watcher reads end-of-file and ends
         for sig, handler in saved.items():
             signal.signal(sig, handler)
+
+
+def _watch_wakeups(read_end: int) -> None:
+    try:
+        while True:
+            data = os.read(read_end, 64)
+            if not data:
+                return
+            for signum in data:
+                if signum in (signal.SIGINT, signal.SIGTERM):
+                    _begin_stop(signum)
+    except OSError:
+        return
+    finally:
+        with contextlib.suppress(OSError):
+            os.close(read_end)

@@ -30,7 +30,7 @@ def test_short_name_keeps_start_and_end():
 
 def test_figure_labels_of_a_huge_name_are_short():
     assert len(_label("N" * 1_000_000, 22)) == 22
-    assert _label("N" * 1_000_000, 22).endswith("…" + "N" * 4)
+    assert _label("N" * 1_000_000, 22) == "N" * 20 + "…" + "N"  # 20 of the start first
 
 
 @dataclasses.dataclass(frozen=True)

@@ -26,8 +26,8 @@ NAME_LIMIT = 60
 def short_name(name: str, limit: int = NAME_LIMIT) -> str:
     """``name`` cut to ``limit`` characters with an ellipsis, keeping its start and end.
 
-    The end is kept too (a fifth of the room) because similar long names often differ
-    there: a site, a number, a legal form.
+    The end is kept too (a fifth of the room, once 20 characters of the start fit)
+    because similar long names often differ there: a site, a number, a legal form.
 
     Examples
     --------
@@ -38,7 +38,7 @@ def short_name(name: str, limit: int = NAME_LIMIT) -> str:
     """
     if len(name) <= limit:
         return name
-    tail = max(limit // 5, 1)
+    tail = min(limit // 5, max(limit - 21, 0))  # but the first 20 characters come first
     return name[: limit - tail - 1] + "…" + name[len(name) - tail :]
 
 

@@ -69,6 +69,7 @@ _STOP_SIGNALS = {signal.SIGINT, signal.SIGTERM}
 _temp_dirs: set[str] = set()  # run folders of live pools, removed on a hard exit
 _stopping: list[int] = []  # the signal being acted on, once one has come
 _lock = threading.Lock()
+_left_block = threading.Event()  # the stop reached the end of signals_stop_run
 
 
 class Terminated(KeyboardInterrupt):
@@ -222,8 +223,9 @@ def _hard_exit(status: int) -> None:
     folders += list(getattr(_output, "_active", ()))  # an output folder's staging folders
     for folder in folders:
         shutil.rmtree(folder, ignore_errors=True)
-    with contextlib.suppress(OSError):
-        os.write(2, b"error: interrupted; stopped before finishing the clean-up.\n")
+    if not _left_block.is_set():  # else the command prints its own line
+        with contextlib.suppress(OSError):
+            os.write(2, b"error: interrupted; stopped before finishing the clean-up.\n")
     os._exit(status)
 
 
@@ -272,6 +274,8 @@ def signals_stop_run() -> Iterator[None]:
     try:
         yield
     finally:
+        if _stopping:
+            _left_block.set()
         signal.set_wakeup_fd(previous_fd)
         os.close(write_end)  # the watcher reads end-of-file and ends
         for sig, handler in saved.items():

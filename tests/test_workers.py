@@ -101,8 +101,9 @@ def _start_in_embedding(edges: Path, work: Path) -> tuple[subprocess.Popen, list
 
 def test_sigkill_during_embedding_leaves_no_process(big_edges, tmp_path):
     proc, tree = _start_in_embedding(big_edges, tmp_path)
-    # The command, its resource tracker and its two view workers.
-    assert len(tree) >= 3
+    # The command, its multiprocessing resource tracker and its two view workers.
+    assert len(tree) >= 4
+    assert any("resource_tracker" in _cmdline(p) for p in tree)
     proc.kill()  # SIGKILL, as the out-of-memory killer sends
     proc.communicate(timeout=30)
     time.sleep(5.0)

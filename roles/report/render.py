@@ -14,7 +14,7 @@ import jinja2
 from .._resources import data_dir
 from ..pipeline import Result
 from .context import build_context
-from .names import printed_names
+from .names import NAME_LIMIT, printed_names
 
 __all__ = ["render_report", "render_html", "write_pdf", "template_dir"]
 
@@ -39,7 +39,7 @@ def render_html(context: dict[str, Any]) -> str:
     env = _environment()
     css = (template_dir() / "report.css").read_text(encoding="utf-8")
     css = css.replace("@PAPER@", "A4" if context.get("paper") == "A4" else "letter")
-    return env.get_template("report.html").render(css=css, **context)
+    return env.get_template("report.html").render(css=css, name_limit=NAME_LIMIT, **context)
 
 
 def _refuse(url: str) -> ValueError:

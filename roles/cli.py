@@ -1,7 +1,8 @@
 """The ``roles`` command: parse options, call the pipeline, map errors to exit codes.
 
 Exit status: 0 success, 2 a problem with the input or options (one ``error:`` line),
-130 interrupted by Ctrl-C, 1 an unexpected internal error.
+130 interrupted by Ctrl-C (SIGINT), 143 stopped by SIGTERM, 1 out of memory (one
+``error:`` line) or an unexpected internal error (a traceback).
 """
 
 from __future__ import annotations
@@ -9,9 +10,11 @@ from __future__ import annotations
 import argparse
 import logging
 import sys
+from concurrent.futures.process import BrokenProcessPool
 from pathlib import Path
 
 from .errors import RolesError
+from .workers import exit_status, signals_stop_run
 
 __all__ = ["main", "build_parser"]
 
@@ -74,6 +77,12 @@ def _add_input(p: argparse.ArgumentParser, *, edges: bool = True) -> None:
     p.add_argument("--quiet", action="store_true", help="print nothing but errors")
     p.add_argument(
         "--debug", action="store_true", help="on an error, show the full Python traceback too"
+    )
+    p.add_argument(
+        "--no-work-limit",
+        action="store_true",
+        help="run even when the estimated walks need more than half the memory or the "
+        "training would take over an hour (refused otherwise, before any work)",
     )
 
 
@@ -164,17 +173,17 @@ class _Parser(argparse.ArgumentParser):
         self.exit(2, f"error: {message} (see '{self.prog} --help')\n")
 
 
-def _interrupted(exc: BaseException) -> bool:
-    """Whether ``exc`` is, or was caused by, Ctrl-C (an import cut short re-raises it
+def _interrupted(exc: BaseException) -> KeyboardInterrupt | None:
+    """The Ctrl-C or SIGTERM behind ``exc``, if any (an import cut short re-raises it
     as ImportError)."""
     seen: set[int] = set()
     cur: BaseException | None = exc
     while cur is not None and id(cur) not in seen:
         if isinstance(cur, KeyboardInterrupt):
-            return True
+            return cur
         seen.add(id(cur))
         cur = cur.__cause__ or cur.__context__
-    return False
+    return None
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -274,6 +283,7 @@ def _demo_args(args: argparse.Namespace) -> argparse.Namespace:
         paper="a4",
         remove=None,
         remove_file=None,
+        no_work_limit=False,
     )
 
 
@@ -303,21 +313,38 @@ def main(argv: list[str] | None = None) -> int:
     log.propagate = False
     log.setLevel(logging.WARNING if args.quiet else logging.INFO)
     try:
-        _dispatch(args)
+        with signals_stop_run():
+            _dispatch(args)
     except RolesError as exc:
         if args.debug:
             raise
         print(f"error: {exc}", file=sys.stderr)
         return 2
+    except (MemoryError, BrokenProcessPool) as exc:
+        if args.debug:
+            raise
+        what = (
+            "ran out of memory"
+            if isinstance(exc, MemoryError)
+            else ("lost a worker process (the system may have run out of memory)")
+        )
+        print(
+            f"error: the run {what}. Lower walks_per_node or walk_length in [walks], or "
+            "dimensions in [embedding], or run on a machine with more memory. Nothing "
+            "was written.",
+            file=sys.stderr,
+        )
+        return 1
     except BaseException as exc:
-        if args.debug or not _interrupted(exc):
+        stop = _interrupted(exc)
+        if args.debug or stop is None:
             raise
         print(
             "error: interrupted. The output folder holds either its earlier files or this "
             "run's complete outputs, never a mix.",
             file=sys.stderr,
         )
-        return 130
+        return exit_status(stop)
     return 0
 
 

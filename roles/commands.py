@@ -13,7 +13,7 @@ from typing import Any
 
 import networkx as nx
 
-from .config import load_config
+from .config import Config, load_config
 from .errors import InputError
 from .load import LoadedNetwork, check_group_column, load_edges, load_nodes
 from .names import shown_name
@@ -106,6 +106,20 @@ def _removed_members(args: argparse.Namespace, graph: nx.Graph) -> list[Any]:
     return check_members(graph, names, option=option) if names else []
 
 
+def _check_workload(
+    args: argparse.Namespace, n_nodes: int, config: Config, *, edges: int | None = None
+) -> None:
+    """Refuse a run past the work limits before it allocates anything
+    (:mod:`roles.workload`); with ``edges``, for the walks the report's budget leaves."""
+    from .workload import check_workload
+
+    if edges is not None:
+        from .budget import walk_budget
+
+        config = walk_budget(n_nodes, edges, config)[0]
+    check_workload(n_nodes, config, insist=bool(getattr(args, "no_work_limit", False)))
+
+
 def report(args: argparse.Namespace) -> None:
     """``roles report``: load, analyse, write report.pdf/html, nodes.csv, summary.json,
     graph.graphml."""
@@ -142,6 +156,7 @@ def report(args: argparse.Namespace) -> None:
         if table.lookalikes:
             source["nodes_lookalike_example"] = [shown_name(n) for n in table.lookalikes[0]]
     remove = _removed_members(args, graph)  # unknown names stop the run before any work
+    _check_workload(args, graph.number_of_nodes(), config, edges=graph.number_of_edges())
     codes: dict[str, str] = {}
     if key is not None:
         graph, attributes, source, codes = _coded(
@@ -199,6 +214,7 @@ def embed(args: argparse.Namespace) -> None:
     net = _load(args)
     if net.graph.number_of_edges() == 0:
         raise InputError("the network has no ties; nothing to embed.", path=str(args.edges))
+    _check_workload(args, net.graph.number_of_nodes(), config)
     graph, source = net.graph, _source_info(net)
     codes: dict[str, str] = {}
     if key is not None:
@@ -268,6 +284,8 @@ def compare(args: argparse.Namespace) -> None:
         union.add_nodes_from(g)
     # One removal scenario for both snapshots; a name must be in at least one of them.
     remove = [str(v) for v in _removed_members(args, union)]
+    for g, _, _ in snaps:
+        _check_workload(args, g.number_of_nodes(), config, edges=g.number_of_edges())
     codes: dict[str, str] = {}
     if key is not None:
         # One key and one set of codes for both snapshots: a member keeps its code.

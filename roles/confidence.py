@@ -54,6 +54,7 @@ from .config import Config
 from .graph import CSRGraph
 from .modularity import louvain, modularity
 from .swaps import Swapped, double_edge_swap, edges_to_csr_arrays
+from .workers import worker_pool
 
 __all__ = [
     "StructureTest",
@@ -358,14 +359,6 @@ def _processes(requested: int | None, worth_it: bool, jobs: int) -> int:
     if requested is None:
         return 2 if worth_it and (os.cpu_count() or 1) > 1 else 1
     return max(1, min(int(requested), jobs))
-
-
-def _pool(processes: int, **kwargs: Any) -> Any:
-    from concurrent.futures import ProcessPoolExecutor
-
-    # numba and gensim threads do not survive fork(): start clean processes.
-    context = multiprocessing.get_context("spawn")
-    return ProcessPoolExecutor(max_workers=processes, mp_context=context, **kwargs)
 
 
 def structure_test(
@@ -763,7 +756,7 @@ def _reruns(
         for cfg in configs:
             yield _rerun(csr, cfg, idx)
         return
-    with _pool(workers) as pool:
+    with worker_pool(workers) as pool:
         futures = [pool.submit(_rerun, csr, cfg, idx, 1) for cfg in configs]
         for future in futures:
             yield future.result()

@@ -33,6 +33,7 @@ __all__ = [
     "load_config",
     "config_from_mapping",
     "DEFAULT_SEED",
+    "P_Q_RANGE",
 ]
 
 DEFAULT_SEED = 20261202
@@ -49,6 +50,16 @@ def _got(value: Any, limit: int = 60) -> str:
     return text if len(text) <= limit else text[:limit] + "..."
 
 
+#: Range of the node2vec return and in-out parameters p and q. The node2vec paper
+#: searched p, q in {0.25, 0.5, 1, 2, 4} (Grover & Leskovec, KDD 2016, Sec. 4.3, from
+#: memory), and the walk sampler's cost is bounded by the range: a proposal is accepted
+#: with probability a / max(a) for the bias a in {1/p, 1, 1/q} of its candidate, so at
+#: worst 1 in max(a) / min(a) proposals is kept (a member whose only tie leads back,
+#: with p = 4 and q = 0.25: 1 in 16). At q = 1e-9 the same member needs about a billion
+#: proposals per step, and the run stalls.
+P_Q_RANGE = (0.25, 4.0)
+
+
 def _check_int(section: str, name: str, value: Any, low: int, high: int) -> int:
     if isinstance(value, bool) or not isinstance(value, int):
         raise ConfigError(
@@ -63,19 +74,17 @@ def _check_int(section: str, name: str, value: Any, low: int, high: int) -> int:
     return value
 
 
-def _check_float(section: str, name: str, value: Any, low: float, high: float) -> float:
-    if isinstance(value, bool) or not isinstance(value, (int, float)):
+def _check_walk_bias(section: str, name: str, value: Any) -> float:
+    """p or q, within :data:`P_Q_RANGE` (bounds included)."""
+    low, high = P_Q_RANGE
+    ok = not isinstance(value, bool) and isinstance(value, (int, float))
+    if not ok or not (math.isfinite(float(value)) and low <= float(value) <= high):
         raise ConfigError(
-            f"The '{name}' parameter of {section} must be a number greater than {low:g} "
-            f"and at most {high:g}. Got {_got(value)} instead."
+            f"The '{name}' parameter of {section} must be a number from {low:g} to {high:g} "
+            "(the range node2vec was tuned over; beyond it the walks slow down without "
+            f"limit). Got {_got(value)} instead."
         )
-    v = float(value)
-    if not math.isfinite(v) or not (low < v <= high):
-        raise ConfigError(
-            f"The '{name}' parameter of {section} must be a number greater than {low:g} "
-            f"and at most {high:g}. Got {_got(value)} instead."
-        )
-    return v
+    return float(value)
 
 
 @dataclass(frozen=True)
@@ -122,8 +131,8 @@ class ViewConfig:
 
     def __post_init__(self) -> None:
         section = f"[views.{self.name}]"
-        _check_float(section, "p", self.p, 0.0, 1000.0)
-        _check_float(section, "q", self.q, 0.0, 1000.0)
+        _check_walk_bias(section, "p", self.p)
+        _check_walk_bias(section, "q", self.q)
         object.__setattr__(self, "p", float(self.p))
         object.__setattr__(self, "q", float(self.q))
 

@@ -28,7 +28,6 @@ import os
 import tempfile
 import zlib
 from collections.abc import Callable, Iterator
-from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass
 from typing import Any
 
@@ -37,6 +36,7 @@ import numpy as np
 from .config import Config, EmbeddingConfig, ViewConfig, WalkConfig
 from .graph import CSRGraph
 from .walks import generate_walks, visit_counts, walk_lengths
+from .workers import worker_pool
 
 __all__ = [
     "Embedding",
@@ -51,7 +51,7 @@ __all__ = [
 FEEDS = ("corpus_file", "iterable")
 _DEFAULT_FEED = "corpus_file"
 
-# Below this many walk tokens per view, starting a second process costs more than it
+# Below this many walk tokens per view, starting worker processes costs more than it
 # saves: a fresh process needs about 1.9 CPU-seconds to import its code, and skip-gram
 # trains about 250,000 tokens per CPU-second (benchmarks/bench_walks.py).
 _PARALLEL_MIN_TOKENS = 1_000_000
@@ -355,10 +355,10 @@ def embed_views(
     keep_walks : bool, default False
         Keep each view's walks in :attr:`Embedding.walks`.
     processes : int, optional
-        2 computes the far view in a second process while this one computes the local
-        view; 1 computes them one after the other. By default two processes are used
-        unless the walks are so short that starting a process would cost more than it
-        saves. The vectors are the same either way.
+        2 computes the two views side by side in two worker processes (this one only
+        waits, so Ctrl-C is acted on at once); 1 computes them one after the other
+        here. By default two processes are used unless the walks are so short that
+        starting a process would cost more than it saves. The vectors are the same either way.
 
     Returns
     -------
@@ -367,7 +367,8 @@ def embed_views(
 
     Notes
     -----
-    The second process is started with the "spawn" method (numba's and gensim's threads
+    The worker processes die with this one (:func:`roles.workers.worker_pool`). They
+    are started with the "spawn" method (numba's and gensim's threads
     do not survive ``fork``). As with any spawned process, a script that calls this at
     import level must put that call under ``if __name__ == "__main__":``. Inside a
     daemonic process, which may not have children, the views run one after the other.
@@ -421,11 +422,8 @@ def embed_views_then(
         processes = 1
     if processes <= 1:
         return {name: _embed_view_then(then, *args) for name, args in jobs.items()}
-    # The far view goes to one fresh process while this one computes the local view:
-    # one process start instead of two. "spawn", because numba's and gensim's threads
-    # do not survive fork().
-    context = multiprocessing.get_context("spawn")
-    with ProcessPoolExecutor(max_workers=1, mp_context=context) as pool:
-        far = pool.submit(_embed_view_then, then, *jobs["far"])
-        local = _embed_view_then(then, *jobs["local"])
-        return {"local": local, "far": far.result()}
+    # Both views in worker processes, so this process only waits and a stop signal is
+    # acted on at once (a compiled kernel running here would hold it off until done).
+    with worker_pool(2) as pool:
+        futures = {name: pool.submit(_embed_view_then, then, *args) for name, args in jobs.items()}
+        return {name: future.result() for name, future in futures.items()}

@@ -525,7 +525,9 @@ def run(
         "dependents",
         "region",
     ):
-        nodes[col] = table.loc[names, col].to_numpy()
+        # An object Index, not the list: pandas would copy a list of names into a
+        # fixed-width array as wide as the longest name for every column.
+        nodes[col] = table.loc[pd.Index(names, dtype=object), col].to_numpy()
     nodes.loc[~connected, "role"] = "no ties"
     nodes["view_agreement"] = np.round(overlap, 4)
     if confidence is not None:
@@ -554,7 +556,7 @@ def run(
         with timer.stage("formal groups"):
             brk = brokerage(graph, groups)
             for col in brk.columns:
-                nodes[col] = brk.loc[names, col].to_numpy()
+                nodes[col] = brk.loc[pd.Index(names, dtype=object), col].to_numpy()
             extras["formal"] = {
                 "attribute": group_by,
                 "nmi": formal_nmi(groups, tied),

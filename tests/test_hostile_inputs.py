@@ -530,7 +530,7 @@ def test_config_unknown_keys(tmp_path, text, words):
 @pytest.mark.parametrize(
     ("text", "words"),
     [
-        ("[views.local]\nq = -1\n", ["'q'", "[views.local]", "greater than 0", "Got -1"]),
+        ("[views.local]\nq = -1\n", ["'q'", "[views.local]", "from 0.25 to 4", "Got -1"]),
         ("[views.far]\np = 0\n", ["'p'", "Got 0"]),
         ("[views.far]\nq = inf\n", ["'q'", "Got inf"]),
         ("[views.far]\nq = nan\n", ["'q'", "Got nan"]),

@@ -24,6 +24,8 @@ from typing import Any
 
 import numpy as np
 
+from .names import short_name
+
 __all__ = [
     "Figure",
     "PALETTE",
@@ -207,8 +209,8 @@ def _visual(text: str) -> str:
 def _label(name: Any, width: int = 28) -> str:
     """A node name fit for a figure: control characters as spaces, long names cut,
     right-to-left runs in display order (see :func:`_visual`)."""
-    text = _CONTROL.sub(" ", str(name)).strip()
-    text = text if len(text) <= width else text[: width - 1] + "…"
+    # Cut first, so that a huge name costs no more than a short one.
+    text = _CONTROL.sub(" ", short_name(str(name).strip(), width)).strip()
     return _visual(text)
 
 

@@ -14,6 +14,7 @@ import jinja2
 from .._resources import data_dir
 from ..pipeline import Result
 from .context import build_context
+from .names import NAME_LIMIT, printed_names
 
 __all__ = ["render_report", "render_html", "write_pdf", "template_dir"]
 
@@ -39,7 +40,7 @@ def render_html(context: dict[str, Any], template: str = "report.html") -> str:
     env = _environment()
     css = (template_dir() / "report.css").read_text(encoding="utf-8")
     css = css.replace("@PAPER@", "A4" if context.get("paper") == "A4" else "letter")
-    return env.get_template(template).render(css=css, **context)
+    return env.get_template(template).render(css=css, name_limit=NAME_LIMIT, **context)
 
 
 def _refuse(url: str) -> ValueError:
@@ -101,9 +102,12 @@ def render_report(
     made: str,
     pseudonymized: bool = False,
 ) -> None:
-    """Write ``report.html`` and ``report.pdf`` for ``result`` into ``folder``."""
+    """Write ``report.html`` and ``report.pdf`` for ``result`` into ``folder``.
+
+    Names longer than :data:`roles.report.names.NAME_LIMIT` are printed shortened.
+    """
     context = build_context(
-        result,
+        printed_names(result),
         title=title,
         kind=kind,
         paper=paper,

@@ -11,6 +11,7 @@ import math
 
 import numpy as np
 
+from ..config import P_Q_RANGE
 from ..errors import ConfigError, InputError
 from ..graph import CSRGraph
 from . import kernel as _kernel
@@ -18,17 +19,16 @@ from . import kernel as _kernel
 __all__ = ["generate_walks", "walks_to_names", "walk_lengths", "visit_counts"]
 
 
-def _check_positive(name: str, value: float) -> float:
-    if isinstance(value, bool) or not isinstance(value, (int, float, np.floating, np.integer)):
+def _check_bias(name: str, value: float) -> float:
+    """p or q within :data:`roles.config.P_Q_RANGE`, where the sampler's cost is bounded."""
+    low, high = P_Q_RANGE
+    ok = not isinstance(value, bool) and isinstance(value, (int, float, np.floating, np.integer))
+    if not ok or not (math.isfinite(float(value)) and low <= float(value) <= high):
         raise ConfigError(
-            f"The '{name}' parameter must be a number greater than 0. Got {value!r} instead."
+            f"The '{name}' parameter must be a number from {low:g} to {high:g}. "
+            f"Got {value!r} instead."
         )
-    v = float(value)
-    if not (math.isfinite(v) and v > 0.0):
-        raise ConfigError(
-            f"The '{name}' parameter must be a number greater than 0. Got {value!r} instead."
-        )
-    return v
+    return float(value)
 
 
 def _check_count(name: str, value: int, low: int) -> int:
@@ -90,7 +90,8 @@ def generate_walks(
     walk_length : int
         Nodes per walk, the start node included.
     p, q : float
-        Return and in-out parameters, both > 0.
+        Return and in-out parameters, each from 0.25 to 4
+        (:data:`roles.config.P_Q_RANGE`): at worst one proposal in 16 is accepted.
     seed : int
         Any non-negative integer; the same seed gives the same walks.
     parallel : bool, default False
@@ -133,8 +134,8 @@ def generate_walks(
     >>> walks.shape
     (8, 5)
     """
-    inv_p = 1.0 / _check_positive("p", p)
-    inv_q = 1.0 / _check_positive("q", q)
+    inv_p = 1.0 / _check_bias("p", p)
+    inv_q = 1.0 / _check_bias("q", q)
     r = _check_count("walks_per_node", walks_per_node, 1)
     length = _check_count("walk_length", walk_length, 1)
     seed = _check_count("seed", seed, 0)

@@ -574,6 +574,11 @@ def run(
         "timings": timer.timings,
         "view_timings": {view: w.seconds for view, w in work.items()},
     }
+    if graph.is_directed():
+        from .customers import final_customers
+
+        spof = [d["node"] for d in summary["single_points_of_failure"]]
+        summary["final_customers"] = [f.as_summary() for f in final_customers(graph, spof)]
     if confidence is not None:
         summary.update(confidence.as_summary())
         extras["confidence"] = confidence

@@ -285,11 +285,11 @@ def test_network_map_names_communities_and_key_members(all_figures):
 
 
 def test_network_map_fills_the_width():
-    # A long ladder (networkx generator) lies along its length across the page,
+    # A long 3 x 20 grid (networkx generator) lies along its length across the page,
     # however the force layout happened to orient it.
     import networkx as nx
 
-    g = nx.ladder_graph(20)
+    g = nx.convert_node_labels_to_integers(nx.grid_2d_graph(3, 20))
     svg = F.network_map(len(g), list(g.edges()), [1] * len(g), names=list(map(str, g))).svg
     width = float(svg.split('width="', 1)[1].split("pt", 1)[0])
     height = float(svg.split('height="', 1)[1].split("pt", 1)[0])
@@ -300,3 +300,18 @@ def test_positions_are_turned_onto_their_principal_axes():
     # A line along y becomes a line along x, lengths kept (by hand).
     out = F.project_2d_positions(np.array([[1.0, 0.0], [1.0, 3.0], [1.0, 6.0]]))
     assert np.allclose(out, [[-3, 0], [0, 0], [3, 0]])
+
+
+def test_a_link_never_passes_under_a_third_circle():
+    # Circles 0 and 2 with circle 1 right between them (by hand): a straight link 0-2
+    # would run under 1 and read as 0-1 and 1-2.
+    centres = np.array([[-4.0, 0.0], [0.0, 0.0], [4.0, 0.0]])
+    radii = np.array([1.0, 1.0, 1.0])
+    path = F._link_path(centres[0] + [1, 0], centres[2] - [1, 0], centres, radii, skip=(0, 2))
+    assert np.min(np.hypot(*(path - centres[1]).T)) > 1.0
+    assert np.allclose(path[0], [-3, 0]) and np.allclose(path[-1], [3, 0])
+    # With nothing in the way the link stays straight.
+    straight = F._link_path(
+        np.array([-3.0, 0]), np.array([3.0, 0]), centres[[0, 2]], radii[:2], skip=(0, 1)
+    )
+    assert np.allclose(straight[:, 1], 0)

@@ -255,7 +255,7 @@ def _communities(result: Result, v: Mapping[str, str], names: Mapping[int, str])
                     else float("nan")
                 ),
                 "membership": _fmt(float(part.membership.mean())),
-                "stability": _stability_words(per.get(str(int(c)))),
+                "stability": _stability_words(per.get(str(int(c))), v),
                 "key_members": list(key.head(3)),
                 "links": [{"label": int(o), "ties": n} for o, n in tied],
             }
@@ -306,11 +306,15 @@ def _communities(result: Result, v: Mapping[str, str], names: Mapping[int, str])
     }
 
 
-def _stability_words(c: Mapping[str, Any] | None) -> str:
+def _stability_words(c: Mapping[str, Any] | None, v: Mapping[str, str] = _BASE) -> str:
     """A community's re-run verdict (Hennig 2007 bands, from the pipeline) in words."""
     if not c or c.get("verdict") in (None, "not re-run"):
         return "–"
-    words = {"stable": "stable", "pattern": "recurs, members vary", "unstable": "unstable"}
+    words = {
+        "stable": "stable",
+        "pattern": f"recurs with varying {v['members']}",
+        "unstable": "unstable",
+    }
     return f"{words.get(c['verdict'], c['verdict'])} ({_fmt(c.get('jaccard'))})"
 
 
@@ -801,7 +805,7 @@ def _method(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
         "total_time": _fmt(float(sum(s.get("timings", {}).values())), 1),
         "versions": list(s.get("versions", {}).items()),
         "structure": _structure(s.get("structure")),
-        "stability": _stability(s.get("stability")),
+        "stability": _stability(s.get("stability"), v),
         "betweenness": _betweenness(s.get("betweenness")),
         "file": inp.get("file", "(given as a graph)"),
         "nodes_file": inp.get("nodes_file"),
@@ -823,8 +827,10 @@ def _structure(st: Any) -> dict[str, Any] | None:
             if st.get("tested") is False
             else ("clear community structure" if st.get("clear") else "not clear"),
         ),
-        ("Modularity of the communities", _fmt(mod.get("communities"))),
-        ("Best modularity found in the network", _fmt(mod.get("best_found"))),
+        # The structure test counts every tie once, whatever its weight (the swaps move
+        # ties, not weights: roles.confidence); section 7's other table uses weights.
+        ("Modularity of the communities, each tie counted once", _fmt(mod.get("communities"))),
+        ("Best modularity found in the network (ties counted once)", _fmt(mod.get("best_found"))),
         (
             "Best modularity in randomised networks",
             f"{_fmt(null.get('mean'))} ± {_fmt(null.get('sd'), 3)}" if null else "–",
@@ -840,7 +846,7 @@ def _structure(st: Any) -> dict[str, Any] | None:
     }
 
 
-def _stability(st: Any) -> dict[str, Any] | None:
+def _stability(st: Any, v: Mapping[str, str] = _BASE) -> dict[str, Any] | None:
     """The seed-stability check's figures, as far as the pipeline gave them."""
     if not isinstance(st, Mapping) or not st.get("runs"):
         return None
@@ -858,7 +864,11 @@ def _stability(st: Any) -> dict[str, Any] | None:
     ]
     return {
         "rows": [(k, val) for k, val in rows if val != "–"],
-        "rule": str(st.get("community_rule", "")),
+        # One word for one verdict across the report: section 2 says "recurs with
+        # varying members" where the pipeline's rule says "pattern".
+        "rule": str(st.get("community_rule", "")).replace(
+            "pattern", f"recurs with varying {v['members']}"
+        ),
         "measure": str(conf.get("measure", "")),
         "budget": str(st.get("budget", "")),
     }

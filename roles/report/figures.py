@@ -333,6 +333,35 @@ def _layout(sizes: np.ndarray, ties: np.ndarray, radii: np.ndarray, seed: int) -
     return xy - xy.mean(axis=0)
 
 
+def _link_path(
+    a: np.ndarray, b: np.ndarray, centres: np.ndarray, radii: np.ndarray, skip: tuple[int, int]
+) -> np.ndarray:
+    """Points of a link from ``a`` to ``b`` that passes under no other circle.
+
+    A straight line that runs under a third circle reads as two links (4-2 as 4-1 and
+    1-2), so such a link is bent: a quadratic curve bowed to whichever side, by the
+    least of a few amounts, clears every other circle. If none does, the straight line
+    is kept.
+    """
+    t = np.linspace(0.0, 1.0, 41)[:, None]
+    d = b - a
+    normal = np.array([-d[1], d[0]])
+    others = [c for c in range(len(radii)) if c not in skip]
+
+    def clear(pts: np.ndarray) -> bool:
+        return all(np.min(np.hypot(*(pts - centres[c]).T)) > radii[c] * 1.08 for c in others)
+
+    straight = a + t * d
+    if clear(straight):
+        return straight
+    for bow in (0.2, -0.2, 0.35, -0.35, 0.5, -0.5):
+        ctrl = (a + b) / 2 + bow * normal
+        curve = (1 - t) ** 2 * a + 2 * (1 - t) * t * ctrl + t**2 * b
+        if clear(curve):
+            return curve
+    return straight
+
+
 def community_map(
     sizes: Sequence[int],
     ties: np.ndarray,
@@ -390,15 +419,16 @@ def community_map(
             a = xy[i] + d / dist * radii[i]  # from rim to rim, never across a circle
             b = xy[j] - d / dist * radii[j]
             width = 0.6 + 7.0 * strengths[o] / top
+            line = _link_path(a, b, xy, radii, skip=(int(i), int(j)))
             ax.plot(
-                [a[0], b[0]],
-                [a[1], b[1]],
+                line[:, 0],
+                line[:, 1],
                 color="#4d4d4d",
                 lw=width,
                 solid_capstyle="butt",
                 zorder=1,
             )
-            mid = (a + b) / 2
+            mid = line[len(line) // 2]
             room = np.hypot(*(b - a)) > label_gap and all(
                 np.hypot(*(mid - xy[c])) > radii[c] + label_gap / 2 for c in range(k)
             )
@@ -1081,6 +1111,7 @@ def network_map(
         for spine in ax.spines.values():
             spine.set_visible(False)
         ax.set_aspect("equal", adjustable="datalim")
+        fig.subplots_adjust(left=0.0, right=1.0, top=1.0, bottom=0.9 / fig.get_size_inches()[1])
         ax.legend(
             loc="upper center",
             bbox_to_anchor=(0.5, -0.01),

@@ -932,7 +932,7 @@ def projections(
                     marker=MARKERS[i],
                     facecolor=PALETTE[i],
                     edgecolor="#222222",
-                    linewidth=0.3,
+                    linewidth=0.5,  # a dark rim: the pale seventh colour stays visible in grey
                     alpha=0.85,
                     label=f"{w['community']} {g}",
                 )

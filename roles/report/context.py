@@ -114,9 +114,10 @@ def _fmt(x: Any, digits: int = 2) -> str:
     if isinstance(x, (float, np.floating)):
         if not np.isfinite(x):
             return "–"
-        if abs(x) < 0.5 * 10.0**-digits:
-            x = 0.0  # no "-0.000"
-        return f"{x:.{digits}f}"
+        value = float(x)
+        if abs(value) < 0.5 * 10.0**-digits:
+            value = 0.0  # no "-0.000"
+        return f"{value:.{digits}f}"
     return str(x)
 
 

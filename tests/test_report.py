@@ -237,7 +237,7 @@ def test_every_page_carries_the_confidentiality_marking(report, supply_pdf):
         assert "Commerciallyconfidential:supplierdata" in _flat(page)
 
 
-def test_cautions_end_with_what_to_check_next(report, supply_pdf):
+def test_cautions_open_with_what_to_check_next(report, supply_pdf):
     organisation = _flat("\n".join(report[1]))
     supply = _flat("\n".join(supply_pdf))
     assert "Whattochecknext" in organisation and "Whattochecknext" in supply

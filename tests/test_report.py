@@ -559,6 +559,7 @@ def test_direction_words_follow_the_kind(supply_result):
     assert "from the first person of its row to the second" in cover
     glossary = organisation.split('id="glossary"')[1]
     assert "supply path" not in glossary and "supply" not in glossary.lower()
+    assert "Final customers" not in organisation  # people are not customers
     assert "supplier to customer" in html("supply").split('<section id="summary">')[0]
     assert "supplier to customer" not in html("general").split('<section id="summary">')[0]
 

@@ -641,6 +641,11 @@ def run(
     }
     summary["what_if"] = [r.as_summary() for r in extras["what_if"].scenarios]
     summary["robustness"] = extras["what_if"].robustness.as_summary()
+    if graph.is_directed():
+        from .customers import final_customers
+
+        spof = [d["node"] for d in summary["single_points_of_failure"]]
+        summary["final_customers"] = [f.as_summary() for f in final_customers(graph, spof)]
     if confidence is not None:
         summary.update(confidence.as_summary())
         extras["confidence"] = confidence

@@ -60,6 +60,15 @@ def all_figures() -> dict[str, F.Figure]:
         "proj": F.projections(
             {"local": rng.normal(size=(n, 8)), "far": rng.normal(size=(n, 8))}, comm
         ),
+        "net": F.network_map(
+            n,
+            [(i, (i * 7 + 3) % n) for i in range(n)],
+            comm,
+            names=names,
+            annotate=range(len(HOSTILE)),
+            community_names={1: "mostly Assembly"},
+            seed=5,
+        ),
     }
 
 
@@ -79,7 +88,7 @@ def test_text_stays_text_not_glyph_paths(all_figures):
 
 
 def test_hostile_names_are_escaped_and_printed_literally(all_figures):
-    for key in ("roles", "deps"):
+    for key in ("roles", "deps", "net"):
         fig = all_figures[key]
         assert "<script>" not in fig.svg and "<img" not in fig.svg
         texts = _texts(fig)
@@ -254,3 +263,61 @@ def test_right_to_left_names_are_stored_in_display_order():
     marked = [t for t in root.iter(f"{SVG}text") if t.get("unicode-bidi") == "bidi-override"]
     # Only the right-to-left label is marked, so a browser does not reorder it again.
     assert ["".join(t.itertext()) for t in marked] == ["\u05dd\u05d5\u05dc\u05e9 Noa"]
+
+
+def _network(seed: int) -> F.Figure:
+    import networkx as nx
+
+    g = nx.connected_caveman_graph(4, 6)  # 4 cliques of 6 in a ring (networkx generator)
+    comm = [1 + i // 6 for i in g]
+    return F.network_map(
+        len(g), list(g.edges()), comm, names=[f"n{i}" for i in g], annotate=[0, 6], seed=seed
+    )
+
+
+def test_network_map_is_seeded_same_run_same_picture():
+    assert _network(3).svg == _network(3).svg
+    assert _network(3).svg != _network(4).svg  # the seed, not chance, fixes the layout
+
+
+def test_network_map_names_communities_and_key_members(all_figures):
+    texts = _texts(all_figures["net"])
+    assert "community 1: mostly Assembly" in texts
+    assert "community 2" in texts
+    # Only the annotated (the hostile names, positions 0-5) are named, not m6..m59.
+    assert not any(t.startswith("m") and t[1:].isdigit() for t in texts)
+    assert any("&amp; Söhne" in t for t in texts)
+    assert "marker shape" in all_figures["net"].caption  # legible in greyscale
+
+
+def test_network_map_fills_the_width():
+    # A long 3 x 20 grid (networkx generator) lies along its length across the page,
+    # however the force layout happened to orient it.
+    import networkx as nx
+
+    g = nx.convert_node_labels_to_integers(nx.grid_2d_graph(3, 20))
+    svg = F.network_map(len(g), list(g.edges()), [1] * len(g), names=list(map(str, g))).svg
+    width = float(svg.split('width="', 1)[1].split("pt", 1)[0])
+    height = float(svg.split('height="', 1)[1].split("pt", 1)[0])
+    assert width > 1.5 * height
+
+
+def test_positions_are_turned_onto_their_principal_axes():
+    # A line along y becomes a line along x, lengths kept (by hand).
+    out = F.project_2d_positions(np.array([[1.0, 0.0], [1.0, 3.0], [1.0, 6.0]]))
+    assert np.allclose(out, [[-3, 0], [0, 0], [3, 0]])
+
+
+def test_a_link_never_passes_under_a_third_circle():
+    # Circles 0 and 2 with circle 1 right between them (by hand): a straight link 0-2
+    # would run under 1 and read as 0-1 and 1-2.
+    centres = np.array([[-4.0, 0.0], [0.0, 0.0], [4.0, 0.0]])
+    radii = np.array([1.0, 1.0, 1.0])
+    path = F._link_path(centres[0] + [1, 0], centres[2] - [1, 0], centres, radii, skip=(0, 2))
+    assert np.min(np.hypot(*(path - centres[1]).T)) > 1.0
+    assert np.allclose(path[0], [-3, 0]) and np.allclose(path[-1], [3, 0])
+    # With nothing in the way the link stays straight.
+    straight = F._link_path(
+        np.array([-3.0, 0]), np.array([3.0, 0]), centres[[0, 2]], radii[:2], skip=(0, 1)
+    )
+    assert np.allclose(straight[:, 1], 0)

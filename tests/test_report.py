@@ -169,10 +169,84 @@ def test_cautions_are_printed_with_their_sources(report):
         "Backstrom,Dwork&Kleinberg",
         "Smith&Moody",
         "Kossinets",
-        "Verifyeachsinglepointoffailure",
-        "Simchi-Levi",
     ):
         assert phrase in text, phrase
+
+
+# Phrases of each reader's cautions (templates/cautions_*.html, cover_warning.html,
+# marking.html), as pypdf extracts them with the white space removed.
+ORGANISATION_CAUTIONS = (
+    "mustnotbeusedtoevaluate",  # Borgatti & Molina 2003
+    "workscouncil",
+    "Article29WorkingParty",
+    "Whomayseethisreport",
+    "purposelimitation",  # GDPR Article 5(1)(b)
+    "storagelimitation",  # GDPR Article 5(1)(e)
+    "Article5(1)(b)and(e)",
+)
+SUPPLY_CAUTIONS = (
+    "Verifyeachsinglepointoffailure",
+    "Simchi-Levietal.2015",  # the citation in the text; the reference list has them all
+    "non-disclosureterms",
+    "Competitionlawlimitsthesharingofsupplierdata",
+    "Article101",
+    "ordervolumesandspend,inventoryandsafetystock,leadtimes",
+    "Commerciallyconfidential",
+)
+
+
+@pytest.fixture(scope="module")
+def supply_pdf(supply_result, tmp_path_factory):
+    folder = tmp_path_factory.mktemp("supply")
+    render_report(
+        supply_result, folder, title="Tree", kind="supply", paper="a4", min_group_size=5, made=MADE
+    )
+    return _text(folder / "report.pdf")
+
+
+@pytest.fixture(scope="module")
+def general_pdf(karate_result, tmp_path_factory):
+    folder = tmp_path_factory.mktemp("general")
+    render_report(
+        karate_result, folder, title="Club", kind="general", paper="a4", min_group_size=5, made=MADE
+    )
+    return _text(folder / "report.pdf")
+
+
+def test_each_reader_gets_their_own_cautions(report, supply_pdf, general_pdf):
+    organisation = _flat("\n".join(report[1]))
+    supply = _flat("\n".join(supply_pdf))
+    general = _flat("\n".join(general_pdf))
+    for phrase in ORGANISATION_CAUTIONS:
+        assert phrase in organisation, phrase
+        assert phrase not in supply, phrase
+    for phrase in SUPPLY_CAUTIONS:
+        assert phrase in supply, phrase
+        assert phrase not in organisation, phrase
+    # General keeps both lists, except each kind's own confidentiality marking.
+    for phrase in ORGANISATION_CAUTIONS + SUPPLY_CAUTIONS[:-1]:
+        assert phrase in general, phrase
+    # The supply cover speaks of firms and contracts, not of individuals' worth.
+    assert "performance,effortorworth" not in supply and "employee" not in supply.lower()
+    assert "performance,effortorworth" in _flat(report[1][0])
+
+
+def test_every_page_carries_the_confidentiality_marking(report, supply_pdf):
+    for page in report[1]:
+        assert "Confidential:namespeople" in _flat(page)
+    for page in supply_pdf:
+        assert "Commerciallyconfidential:supplierdata" in _flat(page)
+
+
+def test_cautions_open_with_what_to_check_next(report, supply_pdf):
+    organisation = _flat("\n".join(report[1]))
+    supply = _flat("\n".join(supply_pdf))
+    assert "Whattochecknext" in organisation and "Whattochecknext" in supply
+    assert "withprocurement" in supply and "withprocurement" not in organisation
+    # The single point of failure of the tree (Firm 00, every other firm downstream).
+    assert "singlesourcesofsection4(Firm00" in supply
+    # The karate report's one member without ties is named, and checked.
+    assert "Member98" in organisation and "withoutworkingties(section2)" in organisation
 
 
 def test_method_section_has_the_reproducibility_figures(report, karate_result):
@@ -274,7 +348,9 @@ def test_dependents_table_lists_the_chain_by_hand_count(report):
     # By hand on the chain: the k-th chain member from the end cuts off k members.
     table = html.split('id="dependencies"')[1].split("</table>")[0]
     cells = re.findall(
-        r'<td class="name">(.*?)</td><td class="num">\d+</td><td class="num">(\d+)</td>', table
+        r'<td class="name">(.*?)</td><td class="num">\d+</td>'
+        r'(?:<td><span class="name">[^<]*</span></td>)?<td class="num">(\d+)</td>',
+        table,
     )
     import html as html_lib
 
@@ -473,3 +549,104 @@ def test_what_if_section_of_a_supply_tree(supply_result):
     assert "<svg" in w["figure"].svg and "R = " in w["figure"].svg
     html = render_html(ctx)
     assert 'id="what-if"' in html and "stock, contracts" in html
+
+
+# ------------------------------------------------------------ direction and kind
+
+
+def test_supply_report_says_when_walks_ignored_direction(supply_result, supply_pdf):
+    # In a tree walks that follow the direction stop at the last tier within a step or
+    # two, so the pipeline walks the ties both ways (summary.json, walks_over).
+    assert supply_result.summary["walks_over"].startswith("ties in both directions")
+    text = _flat("\n".join(supply_pdf))
+    assert "directed:eachpointsfromsuppliertocustomer;theclustersreadthembothways" in text
+    assert "butthewalksbehindtheclustersandthetwoviews(sections2and5)ignoredit" in text
+    assert "Thedependentsofsection4dofollowthedirection" in text
+
+
+def test_direction_words_follow_the_kind(supply_result):
+    def html(kind):
+        ctx = build_context(
+            supply_result, title="t", kind=kind, paper="a4", min_group_size=5, made=MADE
+        )
+        return render_html(ctx)
+
+    organisation = html("organisation")
+    cover = organisation.split('<section id="summary">')[0]
+    assert "supplier to customer" not in cover
+    assert "from the first person of its row to the second" in cover
+    glossary = organisation.split('id="glossary"')[1]
+    assert "supply path" not in glossary and "supply" not in glossary.lower()
+    assert "Final customers" not in organisation  # people are not customers
+    assert "supplier to customer" in html("supply").split('<section id="summary">')[0]
+    assert "supplier to customer" not in html("general").split('<section id="summary">')[0]
+
+
+def test_undirected_report_has_no_direction_caution(report):
+    assert "ignoredit" not in _flat("\n".join(report[1]))
+
+
+# ------------------------------------------------------------- names and figures
+
+
+def test_community_names_by_hand():
+    from roles.report.context import community_names
+
+    cross = {
+        "Assembly": {"1": 9, "2": 1, "3": 2},
+        "Sales": {"1": 1, "2": 4, "3": 2},
+        "Design": {"2": 3, "3": 2},
+        "4": {"3": 5},
+        "3": {"3": 5},
+        "Tiny": {"4": 4},
+    }
+    # Community 1: Assembly 9 of 10 -> mostly. Community 2: Sales 4 of 8 -> mostly.
+    # Community 3: '4' and '3' hold 10 of 16 (62.5%) -> two names. Community 4: all in
+    # a group of 4 (< 5): never named.
+    assert community_names(cross, "tier", 5) == {
+        1: "mostly Assembly",
+        2: "mostly Sales",
+        3: "tier 3 and 4",
+        4: "mixed",
+    }
+
+
+def test_communities_are_named_by_the_formal_groups(report, karate_result):
+    _, pages, html = report
+    # Zachary's two factions ('club', here 'unit'): each community found should be mostly
+    # one of them (Zachary 1977: the split follows the factions closely).
+    text = _flat("\n".join(pages))
+    assert "mostlyMr.Hi" in text and "mostlyOfficer" in text
+    assert TINY not in html  # a group of two is never a name
+
+
+def test_whole_network_figure_below_the_size_limit(report, karate_result, monkeypatch):
+    import roles.report.context as context
+
+    _, pages, html = report
+    text = _flat("\n".join(pages))
+    assert "Thewholeorganisation" in text
+    assert "Everypersonwithworkingtiesandeveryworkingtie" in text
+    # The karate network has 42 members with ties: drawn at a limit of 42, not at 41.
+    monkeypatch.setattr(context, "NETWORK_FIGURE_MAX", 42)
+    kw = dict(title="t", kind="general", paper="a4", min_group_size=5, made=MADE)
+    assert build_context(karate_result, **kw)["network_map"] is not None
+    monkeypatch.setattr(context, "NETWORK_FIGURE_MAX", 41)
+    ctx = build_context(karate_result, **kw)
+    assert ctx["network_map"] is None
+    assert "The whole network" not in render_html(ctx)
+
+
+def test_supply_report_names_final_customers(supply_result, supply_pdf):
+    # networkx brute force on the tree: Firm 00 feeds every firm, so the final
+    # customers it reaches are all firms without customers, and in a tree each is cut
+    # off by every firm above it.
+    g = supply_result.graph
+    sinks = sorted(v for v in g if g.out_degree(v) == 0)
+    first = supply_result.summary["final_customers"][0]
+    assert first["node"] == "Firm 00"
+    assert first["reached"] == first["cut_off"] == len(sinks)
+    assert first["cut_off_names"] == sinks
+    text = _flat("\n".join(supply_pdf))
+    assert "Finalcustomersbehindeachsinglepointoffailure" in text
+    assert _flat(f"Firm 00 {len(sinks)} {sinks[0]}") in text

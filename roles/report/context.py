@@ -31,6 +31,15 @@ MAP_CIRCLES = 15
 #: this share of the shortest paths between others runs through it (betweenness; our
 #: choice, one path in twenty). In the supplier demo the largest share is 0.0024.
 TRAFFIC_FLOOR = 0.05
+#: Final customers named per single point of failure; the rest are counted.
+FINAL_NAMES = 6
+#: Largest network drawn whole, member by member. On the 6.3-inch text width, 300
+#: members leave about 9 mm of figure per member (a 6.3 x 5.2 in figure), room for a
+#: marker and its ties; beyond a few hundred, ties run into one grey mass and a
+#: reader can no longer follow them (common practice; our own reading).
+NETWORK_FIGURE_MAX = 300
+#: Members without ties named in the report; all are in nodes.csv.
+TOP_ISOLATED = 30
 
 _BASE = {
     "member": "member",
@@ -51,6 +60,7 @@ _BASE = {
     "its": "its",
     "it": "it",
     "periphery": "a member at the edge of the network, or ties that were not recorded",
+    "direction": "directed: each points from the first member of its row to the second",
 }
 
 VOCABULARY: dict[str, dict[str, str]] = {
@@ -73,6 +83,8 @@ VOCABULARY: dict[str, dict[str, str]] = {
         "it": "them",
         "periphery": "a newcomer, a specialist, part-time work or simply working ties that "
         "were not recorded",
+        "direction": "directed: each points from the first person of its row to the second "
+        "(for instance from the one who named the tie to the one named)",
     },
     "supply": {
         **_BASE,
@@ -93,6 +105,7 @@ VOCABULARY: dict[str, dict[str, str]] = {
         "hub_text": "many supply ties meet at this one firm",
         "periphery": "a small or occasional supplier or customer, or supply ties that were "
         "not recorded",
+        "direction": "directed: each points from supplier to customer",
     },
     "general": dict(_BASE),
 }
@@ -110,7 +123,10 @@ def _fmt(x: Any, digits: int = 2) -> str:
     if isinstance(x, (float, np.floating)):
         if not np.isfinite(x):
             return "–"
-        return f"{x:.{digits}f}"
+        value = float(x)
+        if abs(value) < 0.5 * 10.0**-digits:
+            value = 0.0  # no "-0.000"
+        return f"{value:.{digits}f}"
     return str(x)
 
 
@@ -158,7 +174,67 @@ def _tie_counts(result: Result) -> tuple[dict[int, int], dict[tuple[int, int], i
     return inside, between
 
 
-def _communities(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
+def _group_label(attr: str, group: str) -> str:
+    """A formal group as a reader says it: 'tier 4' for a short code, else its name."""
+    return f"{attr} {group}" if len(group) <= 3 else group
+
+
+def community_names(
+    crosstab: Mapping[str, Mapping[str, int]], attribute: str, min_group_size: int
+) -> dict[int, str]:
+    """Each community named by the formal groups most of its members belong to.
+
+    'mostly Assembly' when one group holds at least half of the community's members,
+    'Sales and Design' when two hold at least 60% together, else 'mixed' (both bands
+    are our own reading aid). Groups of fewer than ``min_group_size`` members are never
+    named, so no name points at a small group.
+
+    Parameters
+    ----------
+    crosstab : mapping
+        Formal group -> community (as a string) -> members, as in summary.json.
+    attribute : str
+        The formal grouping's column name ('department', 'tier').
+    min_group_size : int
+        Smallest formal group that may be named.
+
+    Returns
+    -------
+    dict
+        Community number -> its name.
+
+    Examples
+    --------
+    >>> cross = {"Assembly": {"1": 9, "2": 1}, "Sales": {"1": 1, "2": 4}, "X": {"2": 4}}
+    >>> community_names(cross, "department", 5)
+    {1: 'mostly Assembly', 2: 'mixed'}
+    """
+    sizes = {str(g): sum(int(n) for n in row.values()) for g, row in crosstab.items()}
+    per: dict[int, dict[str, int]] = {}
+    for g, row in crosstab.items():
+        for col, n in row.items():
+            if str(col) != "0" and int(n) > 0:
+                per.setdefault(int(col), {})[str(g)] = int(n)
+    names: dict[int, str] = {}
+    for c, groups in per.items():
+        total = sum(groups.values())
+        ranked = sorted(
+            ((g, n) for g, n in groups.items() if sizes[g] >= min_group_size),
+            key=lambda gn: (-gn[1], gn[0]),
+        )
+        if ranked and ranked[0][1] >= 0.5 * total:
+            names[c] = f"mostly {_group_label(attribute, ranked[0][0])}"
+        elif len(ranked) >= 2 and ranked[0][1] + ranked[1][1] >= 0.6 * total:
+            g1, g2 = ranked[0][0], ranked[1][0]
+            short = len(g1) <= 3 and len(g2) <= 3  # 'tier 4 and 3', not 'tier 4 and tier 3'
+            second = g2 if short else _group_label(attribute, g2)
+            names[c] = f"{_group_label(attribute, g1)} and {second}"
+        else:
+            names[c] = "mixed"
+    return dict(sorted(names.items()))
+
+
+def _communities(result: Result, v: Mapping[str, str], names: Mapping[int, str]) -> dict[str, Any]:
     table = result.nodes
     found = table[table.community > 0]
     sizes = found.community.value_counts()
@@ -182,6 +258,7 @@ def _communities(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
         rows.append(
             {
                 "label": int(c),
+                "name": names.get(int(c), ""),
                 "size": size,
                 "density": _fmt(inside.get(c, 0) / possible if possible else 0.0),
                 "inside": _fmt(
@@ -190,7 +267,7 @@ def _communities(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
                     else float("nan")
                 ),
                 "membership": _fmt(float(part.membership.mean())),
-                "stability": _stability_words(per.get(str(int(c)))),
+                "stability": _stability_words(per.get(str(int(c))), v),
                 "key_members": list(key.head(3)),
                 "links": [{"label": int(o), "ties": n} for o, n in tied],
             }
@@ -215,7 +292,7 @@ def _communities(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
             matrix[i, j] += n
             matrix[j, i] += n
     map_sizes = [int(sizes[c]) for c in shown]
-    labels = [str(c) for c in shown]
+    labels = [f"{c} {names[c]}".replace(" mostly ", " ") if c in names else str(c) for c in shown]
     if len(order) > MAP_CIRCLES:
         map_sizes.append(int(sizes[order[MAP_CIRCLES:]].sum()))
         labels.append(f"{len(order) - MAP_CIRCLES} others")
@@ -241,11 +318,15 @@ def _communities(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
     }
 
 
-def _stability_words(c: Mapping[str, Any] | None) -> str:
+def _stability_words(c: Mapping[str, Any] | None, v: Mapping[str, str] = _BASE) -> str:
     """A community's re-run verdict (Hennig 2007 bands, from the pipeline) in words."""
     if not c or c.get("verdict") in (None, "not re-run"):
         return "–"
-    words = {"stable": "stable", "pattern": "recurs, members vary", "unstable": "unstable"}
+    words = {
+        "stable": "stable",
+        "pattern": f"recurs with varying {v['members']}",
+        "unstable": "unstable",
+    }
     return f"{words.get(c['verdict'], c['verdict'])} ({_fmt(c.get('jaccard'))})"
 
 
@@ -413,7 +494,35 @@ def _dependencies(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
         )
     total = int((result.nodes.dependents > 0).sum())
     thin = any(r["one_tie_each"] for r in rows)
-    return {"rows": rows, "figure": figure, "count": total, "directed": directed, "thin": thin}
+    finals = {f["node"]: f for f in s.get("final_customers") or []}
+    customers = []
+    for r in rows:
+        f = finals.get(r["node"])
+        if f is None:
+            continue
+        r["final_reached"] = int(f["reached"])
+        r["final_cut_off"] = int(f["cut_off"])
+        cut = list(f["cut_off_names"])
+        also = [n for n in f["reached_names"] if n not in set(cut)]
+        customers.append(
+            {
+                "node": r["node"],
+                "reached": int(f["reached"]),
+                "cut_off": int(f["cut_off"]),
+                "cut_names": cut[:FINAL_NAMES],
+                "cut_more": int(f["cut_off"]) - len(cut[:FINAL_NAMES]),
+                "also_names": also[:FINAL_NAMES],
+                "also_more": int(f["reached"]) - int(f["cut_off"]) - len(also[:FINAL_NAMES]),
+            }
+        )
+    return {
+        "rows": rows,
+        "figure": figure,
+        "count": total,
+        "directed": directed,
+        "customers": customers,
+        "thin": thin,
+    }
 
 
 # ----------------------------------------------------------------------- views
@@ -631,7 +740,7 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
     if result.summary.get("communities", 0) < 2:
         nmi = float("nan")
     return {
-        "cuts": _cuts(cross, shown) if np.isfinite(nmi) else [],
+        "cuts": _cuts(cross, shown, str(f["attribute"])) if np.isfinite(nmi) else [],
         "attribute": str(f["attribute"]),
         "nmi": _fmt(nmi),
         "nmi_words": _nmi_words(nmi) if np.isfinite(nmi) else "cannot be compared with it",
@@ -645,6 +754,7 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
         "hidden": len(hidden),
         "shown": len(shown),
         "brokers": brokers,
+        **_broker_columns(table, bool(result.summary["directed"]), v),
     }
 
 
@@ -665,7 +775,48 @@ def _ei_band(ei: float) -> str:
     return "mostly inward" if ei < -0.33 else ("mostly outward" if ei > 0.33 else "mixed")
 
 
-def _cuts(cross: Mapping[str, Mapping[str, int]], shown: list[str]) -> list[dict[str, Any]]:
+_BROKER_HEADS = {
+    "coordinator": "Coordi&shy;nator",
+    "itinerant": "Itinerant",
+    "representative": "Represen&shy;tative",
+    "gatekeeper": "Gate&shy;keeper",
+    "liaison": "Liaison",
+}
+
+
+def _broker_columns(table: pd.DataFrame, directed: bool, v: Mapping[str, str]) -> dict[str, Any]:
+    """The brokerage columns worth printing, and why the others are not.
+
+    Without direction every path a - v - b is counted both ways, so representative and
+    gatekeeper counts are equal (Gould & Fernandez 1989): one column holds both. A
+    column that is zero for every member (in a tiered supply network, often four of
+    the five) is left out and named in a note.
+    """
+    kinds = [k for k in _BROKER_KINDS if k in table.columns]
+    if not directed:
+        kinds = [k for k in kinds if k != "gatekeeper"]
+    zero = [k for k in kinds if not (table[k] != 0).any()]
+    heads = dict(_BROKER_HEADS)
+    if not directed:
+        heads["representative"] = "Represen&shy;tative or gate&shy;keeper"
+    notes = []
+    if not directed:
+        notes.append(
+            f"Without direction, a {v['member']} that passes its group's {v['ties']} out also "
+            "lets others in: representative and gatekeeper counts are the same, shown once."
+        )
+    if zero:
+        names = ", ".join(k for k in zero)
+        notes.append(f"Zero for every {v['member']}, so not shown: {names}.")
+    return {
+        "broker_columns": [(k, heads[k]) for k in kinds if k not in zero],
+        "broker_notes": notes,
+    }
+
+
+def _cuts(
+    cross: Mapping[str, Mapping[str, int]], shown: list[str], attribute: str
+) -> list[dict[str, Any]]:
     """Communities that draw substantially on more than one formal group.
 
     "Substantially": the second-largest group holds at least a fifth of the community
@@ -676,12 +827,13 @@ def _cuts(cross: Mapping[str, Mapping[str, int]], shown: list[str]) -> list[dict
         for c, n in cross[g].items():
             if str(c) != "0" and n > 0:
                 by_comm.setdefault(str(c), {})[g] = int(n)
-    out = []
+    out: list[dict[str, Any]] = []
     for c, groups in sorted(by_comm.items(), key=lambda kv: (-sum(kv[1].values()), kv[0])):
         ranked = sorted(groups.items(), key=lambda kv: (-kv[1], kv[0]))
         total = sum(groups.values())
         if len(ranked) >= 2 and ranked[1][1] >= 0.2 * total:
-            out.append({"community": c, "groups": [{"group": g, "n": n} for g, n in ranked[:3]]})
+            parts = [{"group": g, "n": n, "label": _group_label(attribute, g)} for g, n in ranked]
+            out.append({"community": c, "groups": parts[:3]})
     return out[:3]
 
 
@@ -759,7 +911,7 @@ def _method(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
         "total_time": _fmt(float(sum(s.get("timings", {}).values())), 1),
         "versions": list(s.get("versions", {}).items()),
         "structure": _structure(s.get("structure")),
-        "stability": _stability(s.get("stability")),
+        "stability": _stability(s.get("stability"), v),
         "betweenness": _betweenness(s.get("betweenness")),
         "file": inp.get("file", "(given as a graph)"),
         "nodes_file": inp.get("nodes_file"),
@@ -781,8 +933,10 @@ def _structure(st: Any) -> dict[str, Any] | None:
             if st.get("tested") is False
             else ("clear community structure" if st.get("clear") else "not clear"),
         ),
-        ("Modularity of the communities", _fmt(mod.get("communities"))),
-        ("Best modularity found in the network", _fmt(mod.get("best_found"))),
+        # The structure test counts every tie once, whatever its weight (the swaps move
+        # ties, not weights: roles.confidence); section 7's other table uses weights.
+        ("Modularity of the communities, each tie counted once", _fmt(mod.get("communities"))),
+        ("Best modularity found in the network (ties counted once)", _fmt(mod.get("best_found"))),
         (
             "Best modularity in randomised networks",
             f"{_fmt(null.get('mean'))} ± {_fmt(null.get('sd'), 3)}" if null else "–",
@@ -798,7 +952,7 @@ def _structure(st: Any) -> dict[str, Any] | None:
     }
 
 
-def _stability(st: Any) -> dict[str, Any] | None:
+def _stability(st: Any, v: Mapping[str, str] = _BASE) -> dict[str, Any] | None:
     """The seed-stability check's figures, as far as the pipeline gave them."""
     if not isinstance(st, Mapping) or not st.get("runs"):
         return None
@@ -816,7 +970,11 @@ def _stability(st: Any) -> dict[str, Any] | None:
     ]
     return {
         "rows": [(k, val) for k, val in rows if val != "–"],
-        "rule": str(st.get("community_rule", "")),
+        # One word for one verdict across the report: section 2 says "recurs with
+        # varying members" where the pipeline's rule says "pattern".
+        "rule": str(st.get("community_rule", "")).replace(
+            "pattern", f"recurs with varying {v['members']}"
+        ),
         "measure": str(conf.get("measure", "")),
         "budget": str(st.get("budget", "")),
     }
@@ -835,6 +993,125 @@ def _betweenness(b: Any) -> str | None:
         f"largest standard error {_fmt(get('expected_error'), 4)}, "
         f"95% bound {_fmt(get('error_bound'), 4)}"
     )
+
+
+# ------------------------------------------------------------- reader's extras
+
+
+def _add_formal_group(result: Result, ctx: dict[str, Any], min_group_size: int) -> None:
+    """Each member's formal group (tier, department) beside its community in the tables.
+
+    Groups under ``min_group_size`` print as '(small group)', as in the brokerage table.
+    """
+    f = result.summary.get("formal")
+    attr = str(f["attribute"]) if f else ""
+    if not f or attr not in result.nodes.columns:
+        ctx["group_column"] = None
+        return
+    values = dict(zip(result.nodes.node, result.nodes[attr].astype(str), strict=True))
+    sizes = result.nodes[attr].astype(str).value_counts()
+    ctx["group_column"] = attr
+
+    def group(node: str) -> str:
+        g = values.get(node, "")
+        if not g.strip():
+            return "–"
+        return g if sizes.get(g, 0) >= min_group_size else "(small group)"
+
+    for part in (ctx["roles"]["bridges"], ctx["roles"]["hubs"], ctx["roles"]["peripheral"]):
+        for r in part:
+            r["group"] = group(r["node"])
+    for r in ctx["dependencies"]["rows"]:
+        r["group"] = group(r["node"])
+
+
+def _network_map(
+    result: Result, v: Mapping[str, str], names: Mapping[int, str]
+) -> figures.Figure | None:
+    """The whole network, when it is small enough to read member by member."""
+    table = result.nodes
+    connected = table[table.community > 0]
+    if len(connected) < 3 or len(connected) > NETWORK_FIGURE_MAX:
+        return None
+    members = connected.node.tolist()
+    pos = {n: i for i, n in enumerate(members)}
+    ties = [(pos[a], pos[b]) for a, b in result.graph.edges() if a in pos and b in pos]
+    s = result.summary
+    key = s["hubs"][:3] + s["bridges"][:3] + [d["node"] for d in s["single_points_of_failure"][:3]]
+    annotate = [pos[n] for n in dict.fromkeys(key) if n in pos]
+    return figures.network_map(
+        len(members),
+        ties,
+        connected.community.astype(int).tolist(),
+        names=members,
+        annotate=annotate,
+        community_names=names,
+        seed=int(s["parameters"].get("seed", 0) or 0),
+        words=v,
+    )
+
+
+def _without_ties(s: Mapping[str, Any]) -> dict[str, Any] | None:
+    """Names of the members without any tie (summary.json keeps up to 50)."""
+    iso = s.get("isolated") or {}
+    count = int(iso.get("count", 0))
+    if not count:
+        return None
+    shown = [str(n) for n in iso.get("names", [])][:TOP_ISOLATED]
+    return {"names": shown, "more": count - len(shown), "count": count}
+
+
+def _check_next(ctx: Mapping[str, Any], v: Mapping[str, str], kind: str) -> list[str]:
+    """What to check next, in the reader's terms (our own list, drawn from the cautions)."""
+    deps = ctx["dependencies"]["rows"]
+    worst = ", ".join(r["node"] for r in deps[:3])
+    iso = ctx["without_ties"]
+    out: list[str] = []
+    if kind == "supply":
+        if deps:
+            out.append(
+                f"Verify the single sources of section 4 ({worst}) with procurement: is there "
+                "a second qualified supplier, stock, or a contract that the data does not show?"
+            )
+        out.append(
+            "Confirm what a recorded supply tie means here: a current order, a framework "
+            "contract, a past delivery? Volumes, inventory and lead times are not in it."
+        )
+        if ctx["dependencies"]["customers"]:
+            out.append(
+                "Ask the final customers named in section 4 how long they could run "
+                "without that supplier."
+            )
+        out.append(
+            "Ask your first-tier suppliers for their own suppliers: the deeper tiers are "
+            "where records are most often missing."
+        )
+    else:
+        out.append(
+            f"Confirm what a recorded {v['tie']} means here (a survey answer, shared "
+            "meetings, messages) and which period it covers, before reading anything into it."
+        )
+        if deps:
+            out.append(
+                f"Talk with the {v['members']} around {worst} (section 4) about how work "
+                f"would reach the others {v['if_lost']}: the data holds only recorded "
+                f"{v['ties']}."
+            )
+        if iso:
+            out.append(
+                f"Check the {iso['count']} {v['member'] if iso['count'] == 1 else v['members']} "
+                f"without {v['ties']} (section 2): missing data, or really apart?"
+            )
+        if kind == "organisation":
+            out.append(
+                "Agree who receives this report and when the data will be deleted, before "
+                "it is shared (section 6)."
+            )
+    if kind == "general" and deps and ctx["s"]["directed"]:
+        out.append(
+            f"Verify the single points of failure of section 4 ({worst}) with those concerned."
+        )
+    return out
 
 
 # ------------------------------------------------------------------- summary
@@ -1012,12 +1289,23 @@ def build_context(
         "no_groups": not s["grouped"] if "grouped" in s else groups_found == 0,
         "isolated": s.get("isolated", {}).get("count", 0),
     }
-    ctx["communities"] = _communities(result, v)
+    f = s.get("formal") or {}
+    names = community_names(f.get("crosstab", {}), str(f["attribute"]), min_group_size) if f else {}
+    ctx["community_names"] = names
+    ctx["communities"] = _communities(result, v, names)
     ctx["roles"] = _roles(result, v)
     ctx["dependencies"] = _dependencies(result, v)
+    _add_formal_group(result, ctx, min_group_size)
+    ctx["network_map"] = _network_map(result, v, names)
+    ctx["without_ties"] = _without_ties(s)
+    ctx["walks_ignored"] = bool(s["directed"]) and str(s.get("walks_over", "")).startswith(
+        "ties in both directions"
+    )
+    ctx["walks_over"] = str(s.get("walks_over", ""))
     ctx["views"] = _views(result, v)
     ctx["formal"] = _formal(result, v, min_group_size)
     ctx["method"] = _method(result, v)
     ctx["what_if"] = what_if_context(result, v, kind)
     ctx["first_looks"] = _first_looks(ctx, v, clear)
+    ctx["check_next"] = _check_next(ctx, v, kind)
     return ctx

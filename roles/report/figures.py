@@ -37,6 +37,7 @@ __all__ = [
     "contingency_heatmap",
     "projections",
     "project_2d",
+    "network_map",
     "ROLE_REGIONS",
 ]
 
@@ -52,7 +53,9 @@ PALETTE = (
     "#F0E442",
     "#000000",
 )
-MARKERS = ("o", "s", "^", "D", "v", "P", "X", "*")
+# The seventh colour is pale yellow, near white in greyscale: it gets a large solid
+# hexagon with a dark rim rather than a thin cross.
+MARKERS = ("o", "s", "^", "D", "v", "P", "h", "*")
 _OTHER = "#9a9a9a"
 
 #: Role regions of Guimerà & Amaral (2005) as (name, z range, P range). Bounds follow
@@ -105,6 +108,7 @@ _GENERAL = {
     "communities": "communities",
     "Community": "Community",
     "Communities": "Communities",
+    "tie": "tie",
     "ties": "ties",
 }
 
@@ -332,6 +336,35 @@ def _layout(sizes: np.ndarray, ties: np.ndarray, radii: np.ndarray, seed: int) -
     return xy - xy.mean(axis=0)
 
 
+def _link_path(
+    a: np.ndarray, b: np.ndarray, centres: np.ndarray, radii: np.ndarray, skip: tuple[int, int]
+) -> np.ndarray:
+    """Points of a link from ``a`` to ``b`` that passes under no other circle.
+
+    A straight line that runs under a third circle reads as two links (4-2 as 4-1 and
+    1-2), so such a link is bent: a quadratic curve bowed to whichever side, by the
+    least of a few amounts, clears every other circle. If none does, the straight line
+    is kept.
+    """
+    t = np.linspace(0.0, 1.0, 41)[:, None]
+    d = b - a
+    normal = np.array([-d[1], d[0]])
+    others = [c for c in range(len(radii)) if c not in skip]
+
+    def clear(pts: np.ndarray) -> bool:
+        return all(np.min(np.hypot(*(pts - centres[c]).T)) > radii[c] * 1.08 for c in others)
+
+    straight = a + t * d
+    if clear(straight):
+        return straight
+    for bow in (0.2, -0.2, 0.35, -0.35, 0.5, -0.5):
+        ctrl = (a + b) / 2 + bow * normal
+        curve = (1 - t) ** 2 * a + 2 * (1 - t) * t * ctrl + t**2 * b
+        if clear(curve):
+            return curve
+    return straight
+
+
 def community_map(
     sizes: Sequence[int],
     ties: np.ndarray,
@@ -389,15 +422,16 @@ def community_map(
             a = xy[i] + d / dist * radii[i]  # from rim to rim, never across a circle
             b = xy[j] - d / dist * radii[j]
             width = 0.6 + 7.0 * strengths[o] / top
+            line = _link_path(a, b, xy, radii, skip=(int(i), int(j)))
             ax.plot(
-                [a[0], b[0]],
-                [a[1], b[1]],
+                line[:, 0],
+                line[:, 1],
                 color="#4d4d4d",
                 lw=width,
                 solid_capstyle="butt",
                 zorder=1,
             )
-            mid = (a + b) / 2
+            mid = line[len(line) // 2]
             room = np.hypot(*(b - a)) > label_gap and all(
                 np.hypot(*(mid - xy[c])) > radii[c] + label_gap / 2 for c in range(k)
             )
@@ -525,8 +559,8 @@ def role_map(
                 code if p1 - p0 < 0.1 else f"{code} {text}",
                 ha="center",
                 va="bottom" if hub else "top",
-                fontsize=5.8,
-                color="#555555",
+                fontsize=6.5,
+                color="#444444",
                 zorder=2,
                 clip_on=False,
             )
@@ -901,7 +935,7 @@ def projections(
                     marker=MARKERS[i],
                     facecolor=PALETTE[i],
                     edgecolor="#222222",
-                    linewidth=0.3,
+                    linewidth=0.5,  # a dark rim: the pale seventh colour stays visible in grey
                     alpha=0.85,
                     label=f"{w['community']} {g}",
                 )
@@ -1002,4 +1036,169 @@ def robustness_chart(
         "height of the line as a share: at most about 0.5, reached when each removal "
         f"costs only the member removed. Based on recorded {w['ties']} only."
     )
+    return Figure(svg, caption)
+
+
+# -------------------------------------------------------------------- whole network
+
+
+def project_2d_positions(xy: np.ndarray) -> np.ndarray:
+    """Points turned onto their principal axes, the longer one first (signs fixed).
+
+    Unlike :func:`project_2d`, rows are not normalised: distances are kept.
+
+    Examples
+    --------
+    >>> project_2d_positions(np.array([[0.0, 0.0], [0.0, 2.0], [0.0, 4.0]])).round(6).tolist()
+    [[-2.0, 0.0], [0.0, 0.0], [2.0, 0.0]]
+    """
+    x = np.asarray(xy, dtype=float)
+    if x.ndim != 2 or x.shape[0] < 2:
+        return np.zeros((0 if x.ndim != 2 else x.shape[0], 2))
+    x = x - x.mean(axis=0)
+    _, _, vt = np.linalg.svd(x, full_matrices=False)
+    signs = np.sign(vt[np.arange(len(vt)), np.abs(vt).argmax(axis=1)])
+    signs[signs == 0] = 1.0
+    out = x @ (vt * signs[:, None]).T
+    return out + 0.0  # no negative zeros
+
+
+def network_map(
+    n: int,
+    ties: Sequence[tuple[int, int]],
+    communities: Sequence[int],
+    *,
+    names: Sequence[str],
+    annotate: Sequence[int] = (),
+    community_names: Mapping[int, str] | None = None,
+    max_groups: int = 8,
+    seed: int = 0,
+    words: Mapping[str, str] | None = None,
+) -> Figure:
+    """The whole network, member by member: a seeded force layout of every tie.
+
+    Parameters
+    ----------
+    n : int
+        Number of members drawn (positions 0..n-1).
+    ties : sequence of (int, int)
+        Ties as pairs of positions; direction is not drawn.
+    communities : sequence of int, length n
+        Community of each member (1-based; 0 or less: none).
+    names : sequence of str, length n
+        Member names, printed for the members in ``annotate``.
+    annotate : sequence of int
+        Positions of the key members whose names are printed.
+    community_names : mapping, optional
+        Community -> a name ('mostly Assembly') for the legend.
+    max_groups : int
+        The largest ``max_groups`` communities get their own colour and marker shape;
+        the rest are small grey dots.
+    seed : int
+        Seed of the layout (Fruchterman & Reingold 1991, as networkx's
+        ``spring_layout``): the same run draws the same picture.
+    words : mapping, optional
+        Vocabulary for the legend and caption.
+
+    Returns
+    -------
+    Figure
+
+    References
+    ----------
+    .. [1] T. M. J. Fruchterman and E. M. Reingold, "Graph drawing by force-directed
+       placement", Software: Practice and Experience 21(11):1129-1164, 1991.
+    """
+    import networkx as nx
+
+    w = _words(words)
+    comm = np.asarray(communities, dtype=int)
+    g = nx.Graph()
+    g.add_nodes_from(range(n))
+    g.add_edges_from((int(a), int(b)) for a, b in ties if a != b)
+    # Twice networkx's default spacing (1 / sqrt(n)): a dense core opens up enough to
+    # tell its members apart (our own choice, judged on the two bundled examples).
+    pos = nx.spring_layout(g, seed=seed, iterations=150, k=2 / np.sqrt(max(n, 1)))
+    xy = np.array([pos[i] for i in range(n)], dtype=float) if n else np.zeros((0, 2))
+    # Turned so that the longer side lies across the page: the figure fills the text
+    # width instead of a narrow column (PCA of the positions; signs fixed).
+    xy = project_2d_positions(xy)
+    span = np.ptp(xy, axis=0) if n else np.ones(2)
+    aspect = float(span[1] / span[0]) if span[0] > 0 else 1.0
+    groups, counts = np.unique(comm[comm > 0], return_counts=True)
+    ranked = [int(c) for c, _ in sorted(zip(groups, counts, strict=True), key=lambda gc: -gc[1])]
+    shown = ranked[:max_groups]
+    cn = community_names or {}
+
+    def paint(fig: Any, ax: Any) -> None:
+        from matplotlib.collections import LineCollection
+
+        segs = [(xy[a], xy[b]) for a, b in g.edges()]
+        ax.add_collection(LineCollection(segs, colors="#8c8c8c", linewidths=0.35, zorder=1))
+        rest = ~np.isin(comm, shown)
+        if rest.any():
+            ax.scatter(
+                xy[rest, 0],
+                xy[rest, 1],
+                s=7,
+                color=_OTHER,
+                edgecolor="#222222",
+                linewidth=0.3,
+                label="other",
+                zorder=2,
+            )
+        for i, c in enumerate(shown):
+            sel = comm == c
+            name = cn.get(c)
+            ax.scatter(
+                xy[sel, 0],
+                xy[sel, 1],
+                s=22,
+                marker=MARKERS[i],
+                facecolor=PALETTE[i],
+                edgecolor="#222222",
+                linewidth=0.5,
+                label=_label(f"{w['community']} {c}" + (f": {name}" if name else ""), 34),
+                zorder=3,
+            )
+        for idx in annotate:
+            ax.annotate(
+                _label(names[idx], 22),
+                xy[idx],
+                xytext=(4, 3),
+                textcoords="offset points",
+                fontsize=6.5,
+                zorder=5,
+                bbox={
+                    "boxstyle": "round,pad=0.12",
+                    "fc": "white",
+                    "ec": "#444444",
+                    "lw": 0.3,
+                    "alpha": 0.9,
+                },
+            )
+        ax.set_xticks([])
+        ax.set_yticks([])
+        for spine in ax.spines.values():
+            spine.set_visible(False)
+        ax.set_aspect("equal", adjustable="datalim")
+        fig.subplots_adjust(left=0.0, right=1.0, top=1.0, bottom=0.9 / fig.get_size_inches()[1])
+        ax.legend(
+            loc="upper center",
+            bbox_to_anchor=(0.5, -0.01),
+            ncol=2 if len(shown) > 3 else max(len(shown), 1),
+            frameon=False,
+            fontsize=6.5,
+        )
+
+    svg = _draw("network-map", (_WIDTH, float(np.clip(_WIDTH * aspect + 0.9, 3.0, 6.0))), paint)
+    caption = (
+        f"Every {w['member']} with {w['ties']} and every {w['tie']}, "
+        f"placed so that tied {w['members']} sit close together (a force layout with a "
+        "fixed seed: the same run draws the same picture; distances are only rough). "
+        f"Colour and marker shape show the {w['community']}; named points are the key "
+        f"{w['members']} of the tables that follow."
+    )
+    if len(ranked) > max_groups:
+        caption += f" Grey dots: the {len(ranked) - max_groups} smaller {w['communities']}."
     return Figure(svg, caption)

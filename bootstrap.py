@@ -2,9 +2,9 @@
 """Set up the project's own environment and run the demo or the tests.
 
     python3 bootstrap.py demo    # writes demo-report/report.pdf
-    python3 bootstrap.py test    # runs ruff and the whole test suite
+    python3 bootstrap.py test    # runs ruff, mypy, the docstring examples and the test suite
 
-Needs only the system Python 3.10+. Creates ``.venv`` beside this file, installs the
+Needs only the system Python 3.11+. Creates ``.venv`` beside this file, installs the
 project into it (with the test extra for ``test``), and installs the system libraries
 WeasyPrint needs (Pango) with apt-get when they are missing and we are root.
 """
@@ -85,7 +85,11 @@ def main(argv: list[str]) -> int:
         return 0
     _environment("test")
     _run([BIN / "ruff", "check", "roles", "tests", "benchmarks", "examples"], cwd=ROOT)
-    result = subprocess.run([str(PY), "-m", "pytest", "-q", *rest], cwd=ROOT)
+    _run([BIN / "mypy", "roles"], cwd=ROOT)
+    # The docstring examples (>>>) of the package run with the tests; given arguments
+    # (a test file, -k ...) replace both.
+    targets = rest or ["--doctest-modules", "roles", "tests"]
+    result = subprocess.run([str(PY), "-m", "pytest", "-q", *targets], cwd=ROOT)
     return result.returncode
 
 

@@ -7,7 +7,7 @@ from __future__ import annotations
 
 import argparse
 import logging
-from datetime import datetime, timezone
+from datetime import UTC, datetime
 from pathlib import Path
 from typing import Any
 
@@ -138,7 +138,7 @@ def report(args: argparse.Namespace) -> None:
     )
     if bar:
         bar("writing the report")
-    made = datetime.now(timezone.utc).strftime("%Y-%m-%d %H:%M UTC")
+    made = datetime.now(UTC).strftime("%Y-%m-%d %H:%M UTC")
     with out as folder:
         write_report_outputs(
             result,
@@ -270,7 +270,7 @@ def compare(args: argparse.Namespace) -> None:
     old, new = results
     changes = compare_results(old, new)
     title = args.title or "What changed"
-    made = datetime.now(timezone.utc).strftime("%Y-%m-%d %H:%M UTC")
+    made = datetime.now(UTC).strftime("%Y-%m-%d %H:%M UTC")
     if bar:
         bar("writing the reports")
     with out as folder:

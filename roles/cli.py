@@ -147,6 +147,12 @@ def _add_report_options(p: argparse.ArgumentParser, *, nodes_twice: bool = False
         default="a4",
         help="paper size of the PDF (default: a4)",
     )
+    p.add_argument(
+        "--no-pdf",
+        action="store_true",
+        help="write every output but report.pdf (for a machine without the PDF "
+        "library, Pango; report.html holds the same report and prints from a browser)",
+    )
 
 
 class _Parser(argparse.ArgumentParser):
@@ -249,6 +255,7 @@ def build_parser() -> argparse.ArgumentParser:
         "year on, compared with the first snapshot (a change report) (default: company)",
     )
     demo.add_argument("--seed", type=int, metavar="N", help="random seed")
+    demo.add_argument("--no-pdf", action="store_true", help="write every output but report.pdf")
     demo.add_argument("--quiet", action="store_true", help="print nothing but errors")
     demo.add_argument("--debug", action="store_true", help="show tracebacks on errors")
     for command in sub.choices.values():
@@ -288,6 +295,7 @@ def _demo_args(args: argparse.Namespace) -> argparse.Namespace:
         pseudonymize=False,
         key_file=None,
         paper="a4",
+        no_pdf=args.no_pdf,
         remove=None,
         remove_file=None,
     )

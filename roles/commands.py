@@ -17,6 +17,7 @@ from .config import load_config
 from .errors import InputError
 from .load import LoadedNetwork, load_edges, load_nodes
 from .output import OutputFolder
+from .pdfengine import check_pdf_engine
 from .progress import StageBar
 
 __all__ = ["report", "embed", "compare", "pseudonymize"]
@@ -98,6 +99,8 @@ def report(args: argparse.Namespace) -> None:
         raise InputError(
             "--key-file only makes sense with --pseudonymize; add it or drop --key-file."
         )
+    if not args.no_pdf:
+        check_pdf_engine()  # stop now rather than after the analysis
     inputs = [Path(args.edges)] + ([Path(args.nodes)] if args.nodes else [])
     out = OutputFolder(args.out, inputs=inputs)  # refuses a bad target before the work
     if args.key_file:
@@ -149,6 +152,7 @@ def report(args: argparse.Namespace) -> None:
             min_group_size=args.min_group_size,
             made=made,
             pseudonymized=bool(args.pseudonymize),
+            pdf=not args.no_pdf,
         )
     if key is not None and args.key_file:
         from .output import write_csv
@@ -156,7 +160,7 @@ def report(args: argparse.Namespace) -> None:
         write_csv(Path(args.key_file), ["code", "name"], sorted(key.items()))
     if bar:
         bar.close()
-    log.info("wrote %s", Path(args.out) / "report.pdf")
+    log.info("wrote %s", Path(args.out) / ("report.html" if args.no_pdf else "report.pdf"))
 
 
 def embed(args: argparse.Namespace) -> None:
@@ -222,6 +226,8 @@ def compare(args: argparse.Namespace) -> None:
         raise InputError(
             "--key-file only makes sense with --pseudonymize; add it or drop --key-file."
         )
+    if not args.no_pdf:
+        check_pdf_engine()  # stop now rather than after the analysis
     node_files = nodes * 2 if len(nodes) == 1 else nodes or [None, None]
     inputs = [Path(args.old), Path(args.new)] + [Path(n) for n in nodes]
     out = OutputFolder(args.out, inputs=inputs)
@@ -285,6 +291,7 @@ def compare(args: argparse.Namespace) -> None:
                 min_group_size=args.min_group_size,
                 made=made,
                 pseudonymized=bool(args.pseudonymize),
+                pdf=not args.no_pdf,
             )
         names = tuple(str(s[2]["file"]) for s in snaps)
         record = changes.as_dict()
@@ -307,11 +314,11 @@ def compare(args: argparse.Namespace) -> None:
             inputs=(names[0], names[1]),
             pseudonymized=bool(args.pseudonymize),
         )
-        render_changes(folder, context)
+        render_changes(folder, context, pdf=not args.no_pdf)
     if key is not None and args.key_file:
         from .output import write_csv
 
         write_csv(Path(args.key_file), ["code", "name"], sorted(key.items()))
     if bar:
         bar.close()
-    log.info("wrote %s", Path(args.out) / "report.pdf")
+    log.info("wrote %s", Path(args.out) / ("report.html" if args.no_pdf else "report.pdf"))

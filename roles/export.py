@@ -421,8 +421,10 @@ def write_report_outputs(
     min_group_size: int,
     made: str,
     pseudonymized: bool = False,
+    pdf: bool = True,
 ) -> None:
-    """Write every output of ``roles report`` into ``folder``."""
+    """Write every output of ``roles report`` into ``folder`` (``report.pdf`` only
+    when ``pdf``)."""
     from .report import render_report
 
     folder = Path(folder)
@@ -448,6 +450,7 @@ def write_report_outputs(
         min_group_size=min_group_size,
         made=made,
         pseudonymized=pseudonymized,
+        pdf=pdf,
     )
 
 

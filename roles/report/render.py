@@ -100,8 +100,10 @@ def render_report(
     min_group_size: int,
     made: str,
     pseudonymized: bool = False,
+    pdf: bool = True,
 ) -> None:
-    """Write ``report.html`` and ``report.pdf`` for ``result`` into ``folder``."""
+    """Write ``report.html`` and (when ``pdf``) ``report.pdf`` for ``result`` into
+    ``folder``."""
     context = build_context(
         result,
         title=title,
@@ -113,4 +115,5 @@ def render_report(
     )
     html = render_html(context)
     (Path(folder) / "report.html").write_text(html, encoding="utf-8")
-    write_pdf(html, Path(folder) / "report.pdf")
+    if pdf:
+        write_pdf(html, Path(folder) / "report.pdf")

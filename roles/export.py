@@ -28,6 +28,7 @@ from .errors import RolesError
 from .graph import CSRGraph
 from .output import write_csv
 from .pipeline import Result
+from .spreadsheet import community_rows, write_nodes_xlsx
 
 __all__ = ["write_report_outputs", "write_embed_outputs", "json_ready"]
 
@@ -430,6 +431,9 @@ def write_report_outputs(
     folder = Path(folder)
     table = result.nodes
     write_csv(folder / "nodes.csv", list(table.columns), _csv_rows(table))
+    write_nodes_xlsx(
+        folder / "nodes.xlsx", list(table.columns), _csv_rows(table), community_rows(result)
+    )
     summary = dict(result.summary)
     summary["report"] = {
         "title": title,

@@ -61,7 +61,7 @@ def test_no_pdf_report_writes_everything_else(edges, tmp_path, no_engine):
     out = tmp_path / "out"
     assert main(["report", str(edges[0]), "--out", str(out), "--quiet", "--no-pdf"]) == 0
     names = {p.name for p in out.iterdir()}
-    assert {"report.html", "nodes.csv", "summary.json", "graph.graphml"} <= names
+    assert {"report.html", "nodes.csv", "nodes.xlsx", "summary.json", "graph.graphml"} <= names
     assert "report.pdf" not in names
 
 

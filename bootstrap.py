@@ -61,13 +61,16 @@ def _environment(extra: str | None) -> None:
     spec = f".[{extra}]" if extra else "."
     sources = [
         ROOT / "pyproject.toml",
+        ROOT / "constraints.txt",
         *sorted((ROOT / "roles").rglob("*.py")),
         *sorted((ROOT / "templates").glob("*")),
     ]
     newest = max(p.stat().st_mtime for p in sources if p.exists())
     if stamp.exists() and stamp.stat().st_mtime >= newest:
         return
-    _run([PY, "-m", "pip", "install", "--quiet", "--disable-pip-version-check", spec], cwd=ROOT)
+    # constraints.txt pins every package to the version the tests ran on.
+    pip = [PY, "-m", "pip", "install", "--quiet", "--disable-pip-version-check"]
+    _run([*pip, "-c", "constraints.txt", spec], cwd=ROOT)
     stamp.touch()
 
 
@@ -76,6 +79,9 @@ def main(argv: list[str]) -> int:
         print(__doc__)
         return 2
     what, rest = argv[0], argv[1:]
+    if sys.version_info < (3, 11):  # noqa: UP036 (bootstrap runs on any system Python)
+        print(f"error: roles needs Python 3.11 or newer; this is {sys.version.split()[0]}.")
+        return 2
     _system_libraries()
     os.environ.setdefault("NUMBA_CACHE_DIR", str(ROOT / ".venv" / "numba-cache"))
     if what == "demo":

@@ -39,3 +39,35 @@ def test_version_from_the_command_line():
     done = roles("--version")
     assert done.returncode == 0
     assert done.stdout.strip() == f"roles {package.__version__}"
+
+
+def _name(requirement: str) -> str:
+    """The normalised distribution name of a requirement (PEP 503)."""
+    import re
+
+    return re.sub(r"[-_.]+", "-", re.split(r"[<>=!~;\[ ]", requirement, maxsplit=1)[0]).lower()
+
+
+def test_floors_are_the_pinned_versions():
+    """Every dependency's floor is the version constraints.txt pins (the tested one)."""
+    meta = tomllib.loads((ROOT / "pyproject.toml").read_text(encoding="utf-8"))["project"]
+    assert meta["requires-python"] == ">=3.11"
+    assert meta["name"] == "roles-network-report"
+    pins = {}
+    for line in (ROOT / "constraints.txt").read_text(encoding="utf-8").splitlines():
+        if line and not line.startswith("#"):
+            name, _, version = line.partition("==")
+            pins[_name(name)] = version.strip()
+    required = meta["dependencies"] + meta["optional-dependencies"]["test"]
+    for requirement in required:
+        floor = requirement.split(">=", 1)[1].split(";")[0].strip()
+        assert pins[_name(requirement)] == floor, requirement
+
+
+def test_versions_block_names_what_shapes_the_results():
+    from roles.pipeline import _versions
+
+    versions = _versions()
+    assert versions["roles"] == package.__version__
+    for pkg in ("numpy", "networkx", "gensim", "scikit-learn", "hdbscan", "numba", "weasyprint"):
+        assert versions[pkg] != "not installed", pkg

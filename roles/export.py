@@ -1,4 +1,4 @@
-"""Result -> files: nodes.csv, summary.json, graph.graphml, the report, the vectors.
+"""Result -> files: nodes.csv, nodes.xlsx, summary.json, graph.graphml, the report, the vectors.
 
 Writers only read what the pipeline computed. CSV cells are made safe to open in a
 spreadsheet by :func:`roles.output.write_csv`. graph.graphml and nodes.csv are written a

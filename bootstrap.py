@@ -2,9 +2,9 @@
 """Set up the project's own environment and run the demo or the tests.
 
     python3 bootstrap.py demo    # writes demo-report/report.pdf
-    python3 bootstrap.py test    # runs ruff and the whole test suite
+    python3 bootstrap.py test    # runs ruff, mypy, the docstring examples and the test suite
 
-Needs only the system Python 3.10+. Creates ``.venv`` beside this file, installs the
+Needs only the system Python 3.11+. Creates ``.venv`` beside this file, installs the
 project into it (with the test extra for ``test``), and installs the system libraries
 WeasyPrint needs (Pango) with apt-get when they are missing and we are root.
 """
@@ -61,13 +61,16 @@ def _environment(extra: str | None) -> None:
     spec = f".[{extra}]" if extra else "."
     sources = [
         ROOT / "pyproject.toml",
+        ROOT / "constraints.txt",
         *sorted((ROOT / "roles").rglob("*.py")),
         *sorted((ROOT / "templates").glob("*")),
     ]
     newest = max(p.stat().st_mtime for p in sources if p.exists())
     if stamp.exists() and stamp.stat().st_mtime >= newest:
         return
-    _run([PY, "-m", "pip", "install", "--quiet", "--disable-pip-version-check", spec], cwd=ROOT)
+    # constraints.txt pins every package to the version the tests ran on.
+    pip = [PY, "-m", "pip", "install", "--quiet", "--disable-pip-version-check"]
+    _run([*pip, "-c", "constraints.txt", spec], cwd=ROOT)
     stamp.touch()
 
 
@@ -76,6 +79,9 @@ def main(argv: list[str]) -> int:
         print(__doc__)
         return 2
     what, rest = argv[0], argv[1:]
+    if sys.version_info < (3, 11):  # noqa: UP036 (bootstrap runs on any system Python)
+        print(f"error: roles needs Python 3.11 or newer; this is {sys.version.split()[0]}.")
+        return 2
     _system_libraries()
     os.environ.setdefault("NUMBA_CACHE_DIR", str(ROOT / ".venv" / "numba-cache"))
     if what == "demo":
@@ -85,7 +91,11 @@ def main(argv: list[str]) -> int:
         return 0
     _environment("test")
     _run([BIN / "ruff", "check", "roles", "tests", "benchmarks", "examples"], cwd=ROOT)
-    result = subprocess.run([str(PY), "-m", "pytest", "-q", *rest], cwd=ROOT)
+    _run([BIN / "mypy", "roles"], cwd=ROOT)
+    # The docstring examples (>>>) of the package run with the tests; given arguments
+    # (a test file, -k ...) replace both.
+    targets = rest or ["--doctest-modules", "roles", "tests"]
+    result = subprocess.run([str(PY), "-m", "pytest", "-q", *targets], cwd=ROOT)
     return result.returncode
 
 

@@ -13,6 +13,7 @@ import sys
 from concurrent.futures.process import BrokenProcessPool
 from pathlib import Path
 
+from . import __version__
 from .errors import RolesError
 from .workers import exit_status, signals_stop_run
 
@@ -164,6 +165,12 @@ def _add_report_options(p: argparse.ArgumentParser, *, nodes_twice: bool = False
         default="a4",
         help="paper size of the PDF (default: a4)",
     )
+    p.add_argument(
+        "--no-pdf",
+        action="store_true",
+        help="write every output but report.pdf (for a machine without the PDF "
+        "library, Pango; report.html holds the same report and prints from a browser)",
+    )
 
 
 class _Parser(argparse.ArgumentParser):
@@ -186,12 +193,34 @@ def _interrupted(exc: BaseException) -> KeyboardInterrupt | None:
     return None
 
 
+EXIT_STATUSES = """exit status:
+  0    success: every output is written
+  1    an unexpected internal error (a bug: please report it with --debug's traceback)
+  2    a problem with the input, the options or the system, told in one 'error:' line;
+       nothing is written
+  130  interrupted (Ctrl-C); the output folder holds its earlier files or this run's
+       complete outputs, never a mix
+"""
+
+
+class _Formatter(argparse.HelpFormatter):
+    """argparse's formatter, but the exit-status table keeps its lines."""
+
+    def _fill_text(self, text: str, width: int, indent: str) -> str:
+        if text is EXIT_STATUSES:
+            return text
+        return super()._fill_text(text, width, indent)
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = _Parser(
         prog="roles",
         description="Find a network's communities, the members that bridge them, its hubs "
         "and its single points of failure, and write a printed report.",
+        epilog=EXIT_STATUSES,
+        formatter_class=_Formatter,
     )
+    parser.add_argument("--version", action="version", version=f"roles {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
     rep = sub.add_parser(
         "report",
@@ -245,8 +274,12 @@ def build_parser() -> argparse.ArgumentParser:
         "year on, compared with the first snapshot (a change report) (default: company)",
     )
     demo.add_argument("--seed", type=int, metavar="N", help="random seed")
+    demo.add_argument("--no-pdf", action="store_true", help="write every output but report.pdf")
     demo.add_argument("--quiet", action="store_true", help="print nothing but errors")
     demo.add_argument("--debug", action="store_true", help="show tracebacks on errors")
+    for command in sub.choices.values():
+        command.epilog = EXIT_STATUSES
+        command.formatter_class = _Formatter
     return parser
 
 
@@ -281,6 +314,7 @@ def _demo_args(args: argparse.Namespace) -> argparse.Namespace:
         pseudonymize=False,
         key_file=None,
         paper="a4",
+        no_pdf=args.no_pdf,
         remove=None,
         remove_file=None,
         no_work_limit=False,

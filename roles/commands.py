@@ -7,7 +7,7 @@ from __future__ import annotations
 
 import argparse
 import logging
-from datetime import datetime, timezone
+from datetime import UTC, datetime
 from pathlib import Path
 from typing import Any
 
@@ -18,6 +18,7 @@ from .errors import InputError
 from .load import LoadedNetwork, check_group_column, load_edges, load_nodes
 from .names import shown_name
 from .output import OutputFolder
+from .pdfengine import check_pdf_engine
 from .privacy import WITHHELD, PseudonymKey, check_key_path, codes_for, write_key
 from .progress import StageBar
 
@@ -26,7 +27,14 @@ __all__ = ["report", "embed", "compare"]
 log = logging.getLogger("roles")
 
 #: What ``roles report`` writes, checked against the output folder before the work.
-REPORT_FILES = ("report.pdf", "report.html", "nodes.csv", "summary.json", "graph.graphml")
+REPORT_FILES = (
+    "report.pdf",
+    "report.html",
+    "nodes.csv",
+    "nodes.xlsx",
+    "summary.json",
+    "graph.graphml",
+)
 COMPARE_FILES = ("report.pdf", "report.html", "changes.json", "old", "new")
 
 
@@ -129,6 +137,8 @@ def report(args: argparse.Namespace) -> None:
     config = load_config(args.config).with_seed(args.seed)
     if args.min_group_size < 1:
         raise InputError(f"--min-group-size must be 1 or more. Got {args.min_group_size}.")
+    if not args.no_pdf:
+        check_pdf_engine()  # stop now rather than after the analysis
     inputs = [Path(args.edges)] + ([Path(args.nodes)] if args.nodes else [])
     # Refuses a bad target before the work: see roles.output.
     out = OutputFolder(
@@ -175,7 +185,7 @@ def report(args: argparse.Namespace) -> None:
     )
     if bar:
         bar("writing the report")
-    made = datetime.now(timezone.utc).strftime("%Y-%m-%d %H:%M UTC")
+    made = datetime.now(UTC).strftime("%Y-%m-%d %H:%M UTC")
     with out as folder:
         write_report_outputs(
             result,
@@ -186,13 +196,14 @@ def report(args: argparse.Namespace) -> None:
             min_group_size=args.min_group_size,
             made=made,
             pseudonymized=bool(args.pseudonymize),
+            pdf=not args.no_pdf,
         )
         if key is not None and args.key_file:
             # Inside the block: a key that cannot be written leaves no report behind.
             write_key(Path(args.key_file), key, codes)
     if bar:
         bar.close()
-    log.info("wrote %s", Path(args.out) / "report.pdf")
+    log.info("wrote %s", Path(args.out) / ("report.html" if args.no_pdf else "report.pdf"))
 
 
 def embed(args: argparse.Namespace) -> None:
@@ -269,6 +280,8 @@ def compare(args: argparse.Namespace) -> None:
             "--nodes takes one file for both snapshots, or two (the first for OLD, the "
             f"second for NEW). Got {len(nodes)}."
         )
+    if not args.no_pdf:
+        check_pdf_engine()  # stop now rather than after the analysis
     node_files = nodes * 2 if len(nodes) == 1 else nodes or [None, None]
     inputs = [Path(args.old), Path(args.new)] + [Path(n) for n in nodes]
     out = OutputFolder(
@@ -314,7 +327,7 @@ def compare(args: argparse.Namespace) -> None:
     old, new = results
     changes = compare_results(old, new)
     title = args.title or "What changed"
-    made = datetime.now(timezone.utc).strftime("%Y-%m-%d %H:%M UTC")
+    made = datetime.now(UTC).strftime("%Y-%m-%d %H:%M UTC")
     if bar:
         bar("writing the reports")
     with out as folder:
@@ -329,6 +342,7 @@ def compare(args: argparse.Namespace) -> None:
                 min_group_size=args.min_group_size,
                 made=made,
                 pseudonymized=bool(args.pseudonymize),
+                pdf=not args.no_pdf,
             )
         names = tuple(str(s[2]["file"]) for s in snaps)
         record = changes.as_dict()
@@ -351,9 +365,9 @@ def compare(args: argparse.Namespace) -> None:
             inputs=(names[0], names[1]),
             pseudonymized=bool(args.pseudonymize),
         )
-        render_changes(folder, context)
+        render_changes(folder, context, pdf=not args.no_pdf)
         if key is not None and args.key_file:
             write_key(Path(args.key_file), key, codes)
     if bar:
         bar.close()
-    log.info("wrote %s", Path(args.out) / "report.pdf")
+    log.info("wrote %s", Path(args.out) / ("report.html" if args.no_pdf else "report.pdf"))

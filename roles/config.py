@@ -10,16 +10,11 @@ from __future__ import annotations
 
 import dataclasses
 import math
-import sys
+import tomllib
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
-
-if sys.version_info >= (3, 11):
-    import tomllib
-else:  # pragma: no cover
-    import tomli as tomllib
 
 from .errors import ConfigError
 

@@ -1,4 +1,4 @@
-"""Result -> files: nodes.csv, summary.json, graph.graphml, the report, the vectors.
+"""Result -> files: nodes.csv, nodes.xlsx, summary.json, graph.graphml, the report, the vectors.
 
 Writers only read what the pipeline computed. CSV cells are made safe to open in a
 spreadsheet by :func:`roles.output.write_csv`. graph.graphml and nodes.csv are written a
@@ -28,6 +28,7 @@ from .errors import RolesError
 from .graph import CSRGraph
 from .output import write_csv
 from .pipeline import Result
+from .spreadsheet import community_rows, write_nodes_xlsx
 
 __all__ = ["write_report_outputs", "write_embed_outputs", "json_ready"]
 
@@ -421,13 +422,18 @@ def write_report_outputs(
     min_group_size: int,
     made: str,
     pseudonymized: bool = False,
+    pdf: bool = True,
 ) -> None:
-    """Write every output of ``roles report`` into ``folder``."""
+    """Write every output of ``roles report`` into ``folder`` (``report.pdf`` only
+    when ``pdf``)."""
     from .report import render_report
 
     folder = Path(folder)
     table = result.nodes
     write_csv(folder / "nodes.csv", list(table.columns), _csv_rows(table))
+    write_nodes_xlsx(
+        folder / "nodes.xlsx", list(table.columns), _csv_rows(table), community_rows(result)
+    )
     summary = dict(result.summary)
     if isinstance(summary.get("formal"), Mapping):
         from .privacy import suppress_small_groups
@@ -452,6 +458,7 @@ def write_report_outputs(
         min_group_size=min_group_size,
         made=made,
         pseudonymized=pseudonymized,
+        pdf=pdf,
     )
 
 

@@ -115,9 +115,12 @@ class _Timer:
 def _versions() -> dict[str, str]:
     from importlib.metadata import PackageNotFoundError, version
 
-    out = {"python": platform.python_version()}
+    from . import __version__
+
+    # The running code's own version (the distribution, roles-network-report, reads it
+    # from the same place), then the libraries that shape the results.
+    out = {"python": platform.python_version(), "roles": __version__}
     for pkg in (
-        "roles",
         "numpy",
         "networkx",
         "gensim",
@@ -133,10 +136,6 @@ def _versions() -> dict[str, str]:
             out[pkg] = version(pkg)
         except PackageNotFoundError:
             out[pkg] = "not installed"
-    if out["roles"] == "not installed":  # run from a source checkout
-        from . import __version__
-
-        out["roles"] = f"{__version__} (source tree)"
     return out
 
 

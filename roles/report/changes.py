@@ -322,8 +322,10 @@ def build_change_context(
     return ctx
 
 
-def render_changes(folder: Path, context: dict[str, Any]) -> None:
-    """Write ``report.html`` and ``report.pdf`` of the change report into ``folder``."""
+def render_changes(folder: Path, context: dict[str, Any], *, pdf: bool = True) -> None:
+    """Write ``report.html`` and (when ``pdf``) ``report.pdf`` of the change report into
+    ``folder``."""
     html = render_html(context, template="changes.html")
     (Path(folder) / "report.html").write_text(html, encoding="utf-8")
-    write_pdf(html, Path(folder) / "report.pdf")
+    if pdf:
+        write_pdf(html, Path(folder) / "report.pdf")

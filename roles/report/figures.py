@@ -178,36 +178,32 @@ def _is_rtl(ch: str) -> bool:
 
 
 def _visual(text: str) -> str:
-    """Right-to-left runs of ``text`` in display order, for a left-to-right line.
+    """``text`` in display order for a left-to-right line, by the Unicode bidirectional
+    algorithm (UAX #9 [1]_, as python-bidi implements it).
 
-    WeasyPrint draws SVG text in stored order, without the Unicode bidirectional
-    algorithm (UAX #9), so a Hebrew or Arabic name would print backwards. Each run of
-    right-to-left letters (with the spaces, punctuation and numbers between them) is
-    reversed here, numbers kept as they read, and :func:`_svg` marks those text
+    WeasyPrint draws SVG text in stored order, without UAX #9, so a Hebrew or Arabic
+    name would print backwards. The line is laid out here as a left-to-right paragraph
+    (the report's direction; UAX #9 rule HL1), and :func:`_svg` marks those text
     elements ``unicode-bidi: bidi-override`` so that browsers showing the HTML do not
-    reorder them a second time. This covers names in a left-to-right line, not full
-    UAX #9 (no embedding levels beyond one right-to-left run).
+    reorder them a second time. Mirrored glyphs (rule L4: a bracket inside a
+    right-to-left run) are not applied: python-bidi's display function leaves them to
+    the renderer.
+
+    References
+    ----------
+    .. [1] Unicode Standard Annex #9, "Unicode Bidirectional Algorithm",
+       https://www.unicode.org/reports/tr9/
+
+    Examples
+    --------
+    >>> _visual("Noa \u05db\u05d4\u05df 3") == "Noa 3 \u05df\u05d4\u05db"
+    True
     """
     if not any(_is_rtl(c) for c in text):
         return text
-    out: list[str] = []
-    i, n = 0, len(text)
-    while i < n:
-        if not _is_rtl(text[i]):
-            out.append(text[i])
-            i += 1
-            continue
-        j = i
-        last = i  # the run ends at its last right-to-left letter
-        while j < n and (_is_rtl(text[j]) or unicodedata.bidirectional(text[j]) not in ("L",)):
-            if _is_rtl(text[j]):
-                last = j
-            j += 1
-        run = text[i : last + 1]
-        tokens = re.findall(r"\d+(?:[.,]\d+)*|.", run)  # numbers stay left to right
-        out.append("".join(reversed(tokens)))
-        i = last + 1
-    return "".join(out)
+    from bidi import get_display
+
+    return str(get_display(text, base_dir="L"))
 
 
 def _label(name: Any, width: int = 28) -> str:

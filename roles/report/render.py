@@ -101,8 +101,10 @@ def render_report(
     min_group_size: int,
     made: str,
     pseudonymized: bool = False,
+    pdf: bool = True,
 ) -> None:
-    """Write ``report.html`` and ``report.pdf`` for ``result`` into ``folder``.
+    """Write ``report.html`` and (when ``pdf``) ``report.pdf`` for ``result`` into
+    ``folder``.
 
     Names longer than :data:`roles.report.names.NAME_LIMIT` are printed shortened.
     """
@@ -117,4 +119,5 @@ def render_report(
     )
     html = render_html(context)
     (Path(folder) / "report.html").write_text(html, encoding="utf-8")
-    write_pdf(html, Path(folder) / "report.pdf")
+    if pdf:
+        write_pdf(html, Path(folder) / "report.pdf")

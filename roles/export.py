@@ -429,6 +429,15 @@ def write_report_outputs(
     from .report import render_report
 
     folder = Path(folder)
+    formal = result.summary.get("formal")
+    if isinstance(formal, Mapping) and formal.get("attribute"):
+        import dataclasses
+
+        from .privacy import hide_small_group_values
+
+        nodes = hide_small_group_values(result.nodes, str(formal["attribute"]), min_group_size)
+        if nodes is not result.nodes:
+            result = dataclasses.replace(result, nodes=nodes)
     table = result.nodes
     write_csv(folder / "nodes.csv", list(table.columns), _csv_rows(table))
     write_nodes_xlsx(

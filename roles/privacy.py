@@ -134,6 +134,37 @@ def _same_file(a: Path, b: Path) -> bool:
         return False
 
 
+def _can_create(folder: Path) -> bool:
+    """Whether a file can be made in ``folder`` (tried: permission bits alone do not tell
+    for root, read-only mounts or /proc); the trial file is removed at once."""
+    import tempfile
+
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=".roles-key-check-", dir=folder)
+    except OSError:
+        return False
+    os.close(fd)
+    os.unlink(tmp)
+    return True
+
+
+def hide_small_group_values(table: Any, attribute: str, min_size: int) -> Any:
+    """The node table with values of ``attribute`` held by fewer than ``min_size``
+    members replaced by ``"other"`` (a copy; the table itself when none is small), so
+    that nodes.csv, graph.graphml and the report name no group ``suppress_small_groups``
+    keeps out of summary.json."""
+    if attribute not in table.columns:
+        return table
+    values = table[attribute].astype(str).str.strip()
+    sizes = values[values != ""].value_counts()
+    small = [g for g, n in sizes.items() if n < min_size]
+    if not small:
+        return table
+    out = table.copy()
+    out[attribute] = out[attribute].astype(object).where(~values.isin(small), "other")
+    return out
+
+
 def check_key_path(path: Path, inputs: Sequence[Path], out: Path) -> PseudonymKey:
     """Check ``--key-file`` before any analysis; the key to use (read back when it exists).
 
@@ -156,7 +187,7 @@ def check_key_path(path: Path, inputs: Sequence[Path], out: Path) -> PseudonymKe
             f"--key-file {str(path)!r}: the folder {str(parent)!r} does not exist; create it "
             "or choose another place for the key."
         )
-    if not os.access(parent, os.W_OK | os.X_OK):
+    if not os.access(parent, os.W_OK | os.X_OK) or not _can_create(parent):
         raise InputError(
             f"--key-file {str(path)!r}: the folder {str(parent)!r} cannot be written; choose "
             "another place for the key."

@@ -113,9 +113,15 @@ def test_sigkill_during_embedding_leaves_no_process(big_edges, tmp_path):
 
 @pytest.mark.parametrize(("signum", "status"), [(signal.SIGINT, 130), (signal.SIGTERM, 143)])
 def test_stop_signal_during_embedding(big_edges, tmp_path, signum, status):
+    from roles.manifest import MANIFEST, fingerprint, write_manifest
+
     out = tmp_path / "report"
     out.mkdir()
     (out / "summary.json").write_text("earlier run")
+    # recorded as an earlier run's output, as the tool records its own (roles.manifest)
+    write_manifest(
+        out, {"summary.json": [fingerprint(out / "summary.json")]}, command="report", complete=True
+    )
     proc, tree = _start_in_embedding(big_edges, tmp_path)
     started = time.monotonic()
     if signum == signal.SIGINT:
@@ -133,7 +139,7 @@ def test_stop_signal_during_embedding(big_edges, tmp_path, signum, status):
     time.sleep(0.5)
     assert [p for p in tree if _alive(p)] == []
     # Nothing of the run left: earlier outputs intact, no staging or temporary files.
-    assert sorted(p.name for p in out.iterdir()) == ["summary.json"]
+    assert sorted(p.name for p in out.iterdir()) == sorted([MANIFEST, "summary.json"])
     assert (out / "summary.json").read_text() == "earlier run"
     assert sorted(p.name for p in tmp_path.iterdir()) == ["report", "tmp"]
     assert list((tmp_path / "tmp").iterdir()) == []

@@ -318,6 +318,14 @@ def build_change_context(
         ),
         "directed": changes.directed,
         "spof": changes.as_dict().get("single_points_of_failure"),
+        # read by the shared cautions (templates/cautions.html)
+        "check_next": [],
+        "walks_ignored": any(
+            bool(r.summary["directed"])
+            and str(r.summary.get("walks_over", "")).startswith("ties in both directions")
+            for r in (old, new)
+        ),
+        "walks_over": str(new.summary.get("walks_over", "")),
     }
     return ctx
 

@@ -143,17 +143,21 @@ def build() -> tuple[list[tuple[str, str, int]], list[dict[str, str]]]:
     return edges, people
 
 
-def main() -> None:
-    edges, people = build()
-    with open(HERE / "company_edges.csv", "w", newline="", encoding="utf-8") as fh:
+def write(edges: list, people: list[dict[str, str]], stem: str) -> None:
+    """Write ``STEM_edges.csv`` and ``STEM_people.csv`` beside this file."""
+    with open(HERE / f"{stem}_edges.csv", "w", newline="", encoding="utf-8") as fh:
         out = csv.writer(fh)
         out.writerow(["source", "target", "weight"])
         out.writerows(edges)
-    with open(HERE / "company_people.csv", "w", newline="", encoding="utf-8") as fh:
+    with open(HERE / f"{stem}_people.csv", "w", newline="", encoding="utf-8") as fh:
         out = csv.DictWriter(fh, fieldnames=["node", "department", "site"])
         out.writeheader()
         out.writerows(people)
     print(f"{len(people)} people, {len(edges)} ties")
+
+
+def main() -> None:
+    write(*build(), "company")
 
 
 if __name__ == "__main__":

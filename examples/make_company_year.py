@@ -20,11 +20,10 @@ Planted changes, which the change report should find:
 
 from __future__ import annotations
 
-import csv
 import random
 from pathlib import Path
 
-from make_company import _name, build
+from make_company import _name, build, write
 
 HERE = Path(__file__).resolve().parent
 SEED = 2027
@@ -109,16 +108,7 @@ def build_year() -> tuple[list[tuple[str, str, int]], list[dict[str, str]]]:
 
 
 def main() -> None:
-    edges, people = build_year()
-    with open(HERE / "company_year_edges.csv", "w", newline="", encoding="utf-8") as fh:
-        out = csv.writer(fh)
-        out.writerow(["source", "target", "weight"])
-        out.writerows(edges)
-    with open(HERE / "company_year_people.csv", "w", newline="", encoding="utf-8") as fh:
-        out = csv.DictWriter(fh, fieldnames=["node", "department", "site"])
-        out.writeheader()
-        out.writerows(people)
-    print(f"{len(people)} people, {len(edges)} ties")
+    write(*build_year(), "company_year")
 
 
 if __name__ == "__main__":

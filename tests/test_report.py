@@ -650,3 +650,16 @@ def test_supply_report_names_final_customers(supply_result, supply_pdf):
     text = _flat("\n".join(supply_pdf))
     assert "Finalcustomersbehindeachsinglepointoffailure" in text
     assert _flat(f"Firm 00 {len(sinks)} {sinks[0]}") in text
+
+
+def test_organisation_words_in_a_directed_network_speak_of_no_supply(supply_result):
+    # A directed organisation network (who reports to whom) is not a supply chain: the
+    # dependencies section and "Look at these first" keep to people.
+    ctx = build_context(
+        supply_result, title="t", kind="organisation", paper="a4", min_group_size=5, made=MADE
+    )
+    html = render_html(ctx)
+    section = html.split('id="dependencies"')[1].split("<section")[0]
+    assert "supplier" not in section and "supply" not in section
+    assert "no working tie points to" in section
+    assert all("supply" not in item["text"] for item in ctx["first_looks"])

@@ -56,6 +56,8 @@ _BASE = {
     "upstream": "upstream",
     "downstream": "downstream",
     "if_lost": "if removed",
+    "sources": "every source (a member no tie points to)",
+    "path": "path from one",
     "hub_text": "many ties meet at this one member",
     "its": "its",
     "it": "it",
@@ -78,6 +80,7 @@ VOCABULARY: dict[str, dict[str, str]] = {
         "Communities": "Teams",
         "network": "organisation",
         "if_lost": "if unavailable",
+        "sources": "everyone no working tie points to",
         "hub_text": "much of the team's work may run through this one person",
         "its": "their",
         "it": "them",
@@ -102,12 +105,21 @@ VOCABULARY: dict[str, dict[str, str]] = {
         "upstream": "towards its suppliers",
         "downstream": "towards its customers",
         "if_lost": "if it fails",
+        "sources": "every source of supply",
+        "path": "supply path",
         "hub_text": "many supply ties meet at this one firm",
         "periphery": "a small or occasional supplier or customer, or supply ties that were "
         "not recorded",
         "direction": "directed: each points from supplier to customer",
     },
     "general": dict(_BASE),
+}
+
+#: How "Look at these first" says where a directed network's paths start, by --kind.
+_SOURCES = {
+    "supply": " from every source of supply",
+    "organisation": " from every path that starts with someone no tie points to",
+    "general": " from every source (a member no tie points to)",
 }
 
 _ROLE_ORDER = ("connector hub", "hub-like", "bridge-like", "peripheral", "member")
@@ -1135,7 +1147,7 @@ def _first_looks(
             "who": d["node"],
             "text": f"{v['if_lost']}, cuts off {n} other "
             f"{v['member'] if n == 1 else v['members']}{names}"
-            + (" from every source of supply" if ctx["s"]["directed"] else "")
+            + (_SOURCES.get(ctx["kind"], _SOURCES["general"]) if ctx["s"]["directed"] else "")
             + (
                 f"; {'each of them has' if n != 1 else 'that one has'} a single recorded "
                 f"{v['tie']}, so check the records first"

@@ -110,6 +110,8 @@ _GENERAL = {
     "Communities": "Communities",
     "tie": "tie",
     "ties": "ties",
+    "sources": "every source (a member no tie points to)",
+    "path": "path from one",
 }
 
 _WIDTH = 6.3  # inches: fits the text width of A4 and US Letter with 18 mm margins
@@ -694,8 +696,8 @@ def dependents_chart(
     svg = _draw("dependents", (_WIDTH, height), paint)
     if directed:
         caption = (
-            f"The {w['members']} whose loss cuts off most others from every source of supply, "
-            "worst at the top. The solid bar counts those left without any supply path; "
+            f"The {w['members']} whose loss cuts off most others from {w['sources']}, "
+            f"worst at the top. The solid bar counts those left without any {w['path']}; "
             + (
                 f"the hatched bar counts all {w['members']} downstream of it, so a solid bar "
                 "nearly as long as the hatched one means the downstream chain has no "

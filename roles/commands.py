@@ -361,7 +361,6 @@ def compare(args: argparse.Namespace) -> None:
             paper=args.paper,
             min_group_size=args.min_group_size,
             made=made,
-            group_by=args.group_by,
             inputs=(names[0], names[1]),
             pseudonymized=bool(args.pseudonymize),
         )

@@ -13,7 +13,7 @@ from pathlib import Path
 from typing import Any
 
 from ..snapshots import Changes, CommunityEvent
-from .context import VOCABULARY, _fmt
+from .context import VOCABULARY, _fmt, community_names
 from .figures import Figure, _draw, _label
 from .render import render_html, write_pdf
 
@@ -35,21 +35,14 @@ _EVENT_WORDS = {
 }
 
 
-def _names(nodes: Any, group_by: str | None, min_group_size: int) -> dict[int, str]:
-    """Community id -> "2 (mostly Design)" when one formal group holds most of it."""
-    out: dict[int, str] = {}
-    has = group_by is not None and group_by in nodes.columns
-    for c, part in nodes.groupby("community"):
-        c = int(c)
-        if c <= 0:
-            continue
-        out[c] = str(c)
-        if has:
-            counts = Counter(str(x) for x in part[group_by] if str(x).strip())
-            if counts:
-                top, n = counts.most_common(1)[0]
-                if n >= min_group_size and n > len(part) / 2:
-                    out[c] = f"{c} (mostly {top})"
+def _names(result: Any, min_group_size: int) -> dict[int, str]:
+    """Community id -> "2 (mostly Design)", named by the formal groups when given
+    (:func:`roles.report.context.community_names`, which never names a small group)."""
+    out = {int(c): str(c) for c in result.nodes["community"].unique() if int(c) > 0}
+    formal = result.summary.get("formal")
+    if isinstance(formal, Mapping) and formal.get("crosstab"):
+        named = community_names(formal["crosstab"], str(formal["attribute"]), min_group_size)
+        out.update({c: f"{c} ({name})" for c, name in named.items() if c in out})
     return out
 
 
@@ -226,14 +219,13 @@ def build_change_context(
     paper: str,
     min_group_size: int,
     made: str,
-    group_by: str | None = None,
     inputs: tuple[str, str] = ("", ""),
     pseudonymized: bool = False,
 ) -> dict[str, Any]:
     """Everything the change report's template shows."""
     v = VOCABULARY.get(kind, VOCABULARY["general"])
-    old_names = _names(old.nodes, group_by, min_group_size)
-    new_names = _names(new.nodes, group_by, min_group_size)
+    old_names = _names(old, min_group_size)
+    new_names = _names(new, min_group_size)
     counts = Counter(e.event for e in changes.events)
 
     def ids(cs: Sequence[int], names: Mapping[int, str]) -> str:

@@ -198,8 +198,10 @@ EXIT_STATUSES = """exit status:
   1    an unexpected internal error (a bug: please report it with --debug's traceback)
   2    a problem with the input, the options or the system, told in one 'error:' line;
        nothing is written
+  1    also: out of memory, or a worker process lost (one 'error:' line)
   130  interrupted (Ctrl-C); the output folder holds its earlier files or this run's
        complete outputs, never a mix
+  143  stopped by SIGTERM, with the same guarantee
 """
 
 

@@ -81,8 +81,11 @@ def modularity(csr: CSRGraph, labels: np.ndarray, *, resolution: float = 1.0) ->
 
 
 @numba.njit(cache=True, nogil=True)
-def _move_nodes(indptr, indices, weights, order, resolution):  # pragma: no cover - compiled
-    """Local moving of one level; returns each node's community (not renumbered)."""
+def local_moves(indptr, indices, weights, order, comm, resolution, max_passes):  # pragma: no cover
+    """Local moving (the first phase of Louvain): each node, in ``order``, joins the
+    neighbouring community with the highest modularity gain, until a pass moves nobody
+    or ``max_passes`` passes. ``comm`` (labels from 0) is changed in place and returned.
+    Shared by :func:`louvain` (from single nodes) and :func:`roles.refine.refine`."""
     n = indptr.shape[0] - 1
     strength = np.zeros(n)
     for i in range(n):
@@ -90,11 +93,13 @@ def _move_nodes(indptr, indices, weights, order, resolution):  # pragma: no cove
             strength[i] += weights[e]
     two_m = strength.sum()
     m = two_m / 2.0
-    comm = np.arange(n)
-    total = strength.copy()  # sum of strengths per community
-    to_comm = np.zeros(n)  # weight from the current node to each community
-    touched = np.empty(n, dtype=np.int64)
-    for _ in range(10_000):  # passes; each move raises Q, so this ends long before
+    n_comm = comm.max() + 1
+    total = np.zeros(n_comm)  # sum of strengths per community
+    for i in range(n):
+        total[comm[i]] += strength[i]
+    to_comm = np.zeros(n_comm)  # weight from the current node to each community
+    touched = np.empty(n_comm, dtype=np.int64)
+    for _ in range(max_passes):
         moves = 0
         for i in order:
             own = comm[i]
@@ -129,6 +134,14 @@ def _move_nodes(indptr, indices, weights, order, resolution):  # pragma: no cove
         if moves == 0:
             break
     return comm
+
+
+@numba.njit(cache=True, nogil=True)
+def _move_nodes(indptr, indices, weights, order, resolution):  # pragma: no cover - compiled
+    """Local moving of one level from single nodes; each node's community (not
+    renumbered). Each move raises Q, so 10,000 passes are never reached."""
+    n = indptr.shape[0] - 1
+    return local_moves(indptr, indices, weights, order, np.arange(n), resolution, 10_000)
 
 
 @numba.njit(cache=True, nogil=True)

@@ -19,61 +19,11 @@ References
 
 from __future__ import annotations
 
-import numba
 import numpy as np
 
+from .modularity import local_moves
+
 __all__ = ["refine"]
-
-
-@numba.njit(cache=True, nogil=True)
-def _move(indptr, indices, weights, comm, order, max_passes):  # pragma: no cover - compiled
-    n = indptr.shape[0] - 1
-    strength = np.zeros(n)
-    for i in range(n):
-        for e in range(indptr[i], indptr[i + 1]):
-            strength[i] += weights[e]
-    two_m = strength.sum()
-    m = two_m / 2.0
-    n_comm = comm.max() + 1
-    total = np.zeros(n_comm)
-    for i in range(n):
-        total[comm[i]] += strength[i]
-    to_comm = np.zeros(n_comm)
-    touched = np.empty(n_comm, dtype=np.int64)
-    for _ in range(max_passes):
-        moves = 0
-        for i in order:
-            own = comm[i]
-            k = strength[i]
-            n_touched = 0
-            for e in range(indptr[i], indptr[i + 1]):
-                j = indices[e]
-                if j == i:
-                    continue
-                c = comm[j]
-                if to_comm[c] == 0.0:
-                    touched[n_touched] = c
-                    n_touched += 1
-                to_comm[c] += weights[e]
-            total[own] -= k
-            best = own
-            best_gain = to_comm[own] / m - total[own] * k / (2.0 * m * m)
-            for t in range(n_touched):
-                c = touched[t]
-                gain = to_comm[c] / m - total[c] * k / (2.0 * m * m)
-                if gain > best_gain:
-                    best_gain = gain
-                    best = c
-            total[best] += k
-            if best != own:
-                comm[i] = best
-                moves += 1
-            to_comm[own] = 0.0
-            for t in range(n_touched):
-                to_comm[touched[t]] = 0.0
-        if moves == 0:
-            break
-    return comm
 
 
 def refine(
@@ -124,11 +74,12 @@ def refine(
     indptr = np.zeros(n + 1, dtype=np.int64)
     np.cumsum(np.bincount(u, minlength=n), out=indptr[1:])
     visit = np.random.default_rng(seed).permutation(n).astype(np.int64)
-    return _move(
+    return local_moves(
         indptr,
         np.asarray(v, dtype=np.int64)[order],
         np.asarray(w, dtype=np.float64)[order],
-        comm,
         visit,
+        comm,
+        1.0,
         max_passes,
     )

@@ -128,6 +128,22 @@ def _check_workload(
     check_workload(n_nodes, config, insist=bool(getattr(args, "no_work_limit", False)))
 
 
+def _before_work(
+    args: argparse.Namespace, inputs: list[Path], *, command: str, expected: tuple[str, ...]
+) -> tuple[OutputFolder, PseudonymKey | None]:
+    """The checks of ``report`` and ``compare`` that come before any analysis: the PDF
+    engine, the output folder (see :mod:`roles.output`) and the key file."""
+    if not args.no_pdf:
+        check_pdf_engine()  # stop now rather than after the analysis
+    out = OutputFolder(
+        args.out,
+        inputs=inputs + ([Path(args.config)] if args.config else []),
+        command=command,
+        expected=expected,
+    )
+    return out, _key(args, inputs)
+
+
 def report(args: argparse.Namespace) -> None:
     """``roles report``: load, analyse, write report.pdf/html, nodes.csv, summary.json,
     graph.graphml."""
@@ -137,17 +153,8 @@ def report(args: argparse.Namespace) -> None:
     config = load_config(args.config).with_seed(args.seed)
     if args.min_group_size < 1:
         raise InputError(f"--min-group-size must be 1 or more. Got {args.min_group_size}.")
-    if not args.no_pdf:
-        check_pdf_engine()  # stop now rather than after the analysis
     inputs = [Path(args.edges)] + ([Path(args.nodes)] if args.nodes else [])
-    # Refuses a bad target before the work: see roles.output.
-    out = OutputFolder(
-        args.out,
-        inputs=inputs + ([Path(args.config)] if args.config else []),
-        command="report",
-        expected=REPORT_FILES,
-    )
-    key = _key(args, inputs)
+    out, key = _before_work(args, inputs, command="report", expected=REPORT_FILES)
     net = _load(args)
     graph = net.graph
     attributes = None
@@ -280,17 +287,9 @@ def compare(args: argparse.Namespace) -> None:
             "--nodes takes one file for both snapshots, or two (the first for OLD, the "
             f"second for NEW). Got {len(nodes)}."
         )
-    if not args.no_pdf:
-        check_pdf_engine()  # stop now rather than after the analysis
     node_files = nodes * 2 if len(nodes) == 1 else nodes or [None, None]
     inputs = [Path(args.old), Path(args.new)] + [Path(n) for n in nodes]
-    out = OutputFolder(
-        args.out,
-        inputs=inputs + ([Path(args.config)] if args.config else []),
-        command="compare",
-        expected=COMPARE_FILES,
-    )
-    key = _key(args, inputs)
+    out, key = _before_work(args, inputs, command="compare", expected=COMPARE_FILES)
     snaps = [_snapshot(e, n, args) for e, n in zip((args.old, args.new), node_files, strict=True)]
     union = nx.Graph()
     for g, _, _ in snaps:

@@ -17,7 +17,7 @@ import math
 import networkx as nx
 import numpy as np
 
-from roles.measures import BRIDGE_P, BRIDGE_SHARE, role_table
+from roles.analysis.measures import BRIDGE_P, BRIDGE_SHARE, role_table
 
 
 def old_rule(table) -> set:

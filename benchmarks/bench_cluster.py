@@ -12,7 +12,7 @@ Run: ``.venv/bin/python benchmarks/bench_cluster.py [--sizes 50000 100000]
 [--vector-dims 64 16] [--min-sizes 0 10] [--dims 16 8] [--selection hdbscan network]
 [--json FILE]``. ``--selection network`` groups as ``roles.run`` does, with the graph's
 ties (``cluster(..., ties=...)``); ``hdbscan``, HDBSCAN's own selection. Limit ``0``:
-every row; window ``0``: the one ``roles.budget.walk_budget`` picks; ``--negatives``:
+every row; window ``0``: the one ``roles.embedding.budget.walk_budget`` picks; ``--negatives``:
 skip-gram negative samples; ``--vector-dims``: skip-gram vector size, ``0`` the
 default's; ``--dims``: dimensions kept by PCA. Cached vectors are named after the
 graph, window, negatives and vector size. Each new set of vectors prints the wall time
@@ -54,10 +54,10 @@ def _vectors(
     import networkx as nx
     from bench_pipeline import make_graph
 
-    from roles.budget import walk_budget
     from roles.config import Config
-    from roles.embed import embed_views
-    from roles.graph import to_csr
+    from roles.embedding.budget import walk_budget
+    from roles.embedding.embed import embed_views
+    from roles.embedding.graph import to_csr
 
     graph, truth = make_graph("planted", n, seed)
     graph = nx.relabel_nodes(graph, {v: str(v) for v in graph}, copy=True)
@@ -84,11 +84,11 @@ def _vectors(
 
 
 def _ties(n: int, seed: int) -> Any:
-    """The planted graph's ties, in the form ``roles.cluster.cluster`` takes them."""
+    """The planted graph's ties, in the form ``roles.embedding.cluster.cluster`` takes them."""
     from bench_pipeline import make_graph
 
-    from roles.cluster import ties_of
-    from roles.graph import to_csr
+    from roles.embedding.cluster import ties_of
+    from roles.embedding.graph import to_csr
 
     graph, _ = make_graph("planted", n, seed)
     csr = to_csr(graph)
@@ -121,7 +121,7 @@ def main() -> None:
 
     from sklearn.metrics import normalized_mutual_info_score
 
-    from roles.cluster import cluster
+    from roles.embedding.cluster import cluster
 
     rows: list[dict[str, Any]] = []
     print(

@@ -10,14 +10,14 @@ Prints four tables:
    best modularity each way (they should agree), and the seconds per randomisation.
 3. Structure test cost per network size: the test graph's arrays, one randomisation
    (swaps at 3 and 10 per tie, Louvain), Louvain on the network, the null's spread, the
-   whole test under the budget rule (``roles.confidence.structure_budget``) on one
+   whole test under the budget rule (``roles.analysis.confidence.structure_budget``) on one
    thread and on two, and all 20 randomisations on two threads; with ``--networkx-upto``
    also one randomisation made the networkx way, for comparison.
 4. Stability cost per network size: one re-run of embedding and clustering (both views)
    with each view grouped in the process that embedded it (``embed_views_then``, as
-   :func:`roles.confidence.stability` does) against grouping both views afterwards in
+   :func:`roles.analysis.confidence.stability` does) against grouping both views afterwards in
    the parent (``embed_views`` then ``cluster``), checked to give the same labels; and
-   three re-runs as :func:`roles.confidence.stability` makes them.
+   three re-runs as :func:`roles.analysis.confidence.stability` makes them.
 
 Wall seconds depend on what else the machine runs; CPU seconds include this process's
 threads and its finished worker processes. Networks are the planted partitions of
@@ -41,10 +41,10 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 
 from bench_pipeline import planted_partition  # noqa: E402
 
-from roles import confidence  # noqa: E402
-from roles.budget import walk_budget  # noqa: E402
+from roles.analysis import confidence  # noqa: E402
 from roles.config import Config  # noqa: E402
-from roles.graph import to_csr  # noqa: E402
+from roles.embedding.budget import walk_budget  # noqa: E402
+from roles.embedding.graph import to_csr  # noqa: E402
 
 
 def _cpu() -> float:
@@ -117,7 +117,8 @@ def agreement_table(randomisations: int) -> None:
     from scipy.stats import ttest_ind
 
     print(f"\n2. Randomised networks' best modularity, {randomisations} randomisations of 10 "
-          "swaps per tie each way (compiled: roles.swaps + roles.modularity; networkx: "
+          "swaps per tie each way (compiled: roles.analysis.swaps + "
+          "roles.analysis.modularity; networkx: "
           "double_edge_swap + louvain_communities)")  # fmt: skip
     print(f"{'graph':>16} {'ties':>6} {'compiled mean':>14} {'sd':>7} {'networkx mean':>14} "
           f"{'sd':>7} {'Welch p':>8} {'compiled s':>11} {'networkx s':>11}")  # fmt: skip
@@ -191,8 +192,8 @@ def structure_table(sizes: list[int], networkx_upto: int) -> None:
 
 def _rerun_grouping_after(csr, config: Config, idx: np.ndarray) -> dict[str, np.ndarray]:
     """A re-run with both views grouped in the parent after embedding (the old way)."""
-    from roles.cluster import cluster
-    from roles.embed import embed_views
+    from roles.embedding.cluster import cluster
+    from roles.embedding.embed import embed_views
     from roles.pipeline import stage_seeds
 
     seeds = stage_seeds(config.seed)

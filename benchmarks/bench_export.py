@@ -4,7 +4,7 @@ Usage: python benchmarks/bench_export.py [--nodes N] [--edges M] [--seed S] [--o
 
 Data: a synthetic Result-like pair, built the same way in every run: an undirected
 networkx graph of N nodes with made-up names and M random ties (numpy generator, float
-weights as ``roles.load`` makes them), and a node table with the columns
+weights as ``roles.io.load`` makes them), and a node table with the columns
 ``roles.pipeline.run`` gives a network of that size (no ``confidence`` column: the
 confidence checks stop at 10,000 members), a few NaN cells included.
 
@@ -12,10 +12,10 @@ Variants, each in a fresh subprocess so that memory peaks do not mix:
 
 - ``graphml old``: the writer up to commit 2e17776 (copy the graph, set every table column
   as node attributes, ``networkx.write_graphml``, which builds the XML tree);
-- ``graphml new``: ``roles.export._write_graphml`` (streams the document);
+- ``graphml new``: ``roles.io.export._write_graphml`` (streams the document);
 - ``csv old``: rows through ``itertuples`` and ``json_ready`` per cell, then
-  ``roles.output.write_csv``;
-- ``csv new``: ``roles.export._csv_rows`` (a column at a time), then ``write_csv``.
+  ``roles.io.output.write_csv``;
+- ``csv new``: ``roles.io.export._csv_rows`` (a column at a time), then ``write_csv``.
 
 Columns: wall and CPU seconds of the write (on a shared machine the wall time also
 measures the neighbours); RSS once the data is built; the process's peak RSS
@@ -42,8 +42,8 @@ import pandas as pd
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-from roles.export import _csv_rows, _write_graphml, json_ready  # noqa: E402
-from roles.output import write_csv  # noqa: E402
+from roles.io.export import _csv_rows, _write_graphml, json_ready  # noqa: E402
+from roles.io.output import write_csv  # noqa: E402
 
 VARIANTS = ("graphml old", "graphml new", "csv old", "csv new")
 
@@ -83,7 +83,7 @@ def make_data(n: int, m: int, seed: int) -> tuple[nx.Graph, pd.DataFrame]:
 
 
 def old_graphml(graph: nx.Graph, nodes: pd.DataFrame, path: Path) -> None:
-    """roles.export._graphml as of commit 2e17776."""
+    """roles.io.export._graphml as of commit 2e17776."""
     g = graph.copy()
     table = nodes.set_index("node")
     for col in table.columns:

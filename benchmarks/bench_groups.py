@@ -8,7 +8,7 @@ Three parts, each printing a table (``--parts lfr small stability``):
     30-100, graph seeds 1-3 (``--graphs``) at mixing 0.1-0.5. Each graph is embedded once
     (``Config(seed=graph seed)``, budget applied as the pipeline does); on the same
     vectors each view is grouped as before (HDBSCAN's own selection, noise attached by
-    nearest neighbours) and as now (``roles.cluster.cluster(..., ties=...)``); the
+    nearest neighbours) and as now (``roles.embedding.cluster.cluster(..., ties=...)``); the
     community view is picked by ``roles.pipeline.choose_community_view`` in both cases.
     NMI with the planted communities, against networkx's Louvain
     (``louvain_communities(seed=0)``) on the same graphs.
@@ -46,13 +46,13 @@ import networkx as nx
 import numpy as np
 from sklearn.metrics import normalized_mutual_info_score as nmi
 
-from roles.budget import walk_budget
-from roles.cluster import cluster, ties_of
+from roles.analysis.modularity import louvain
+from roles.analysis.modularity import modularity as modularity_of
 from roles.config import ConfidenceConfig, Config
-from roles.embed import embed_views
-from roles.graph import to_csr
-from roles.modularity import louvain
-from roles.modularity import modularity as modularity_of
+from roles.embedding.budget import walk_budget
+from roles.embedding.cluster import cluster, ties_of
+from roles.embedding.embed import embed_views
+from roles.embedding.graph import to_csr
 from roles.pipeline import choose_community_view, stage_seeds
 
 MIXING = (0.1, 0.2, 0.3, 0.4, 0.5)

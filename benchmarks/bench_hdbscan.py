@@ -2,9 +2,9 @@
 
 The vectors are those of ``bench_cluster.py`` (planted-community graph, both views as
 ``roles.run`` computes them, cached in ``--cache``; computed there first if missing).
-Each view is normalised and reduced as :func:`roles.cluster.cluster` does, then random
+Each view is normalised and reduced as :func:`roles.embedding.cluster.cluster` does, then random
 subsets of ``--rows`` rows are fitted with each of ``--algorithms`` (smallest group and
-``min_samples`` as :func:`roles.cluster._fit_sampled` would scale them from 5), best wall
+``min_samples`` as :func:`roles.embedding.cluster._fit_sampled` would scale them from 5), best wall
 time of ``--repeats`` fits on one core. Columns: groups, noise share, NMI of the labels
 against the first algorithm's, and NMI against the planted communities over the rows
 not left as noise and over all rows (noise as one label).
@@ -29,8 +29,8 @@ sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
 from bench_cluster import _vectors  # noqa: E402
 
-from roles.cluster import MIN_GROUP, _reduce  # noqa: E402
 from roles.config import ClusterConfig  # noqa: E402
+from roles.embedding.cluster import MIN_GROUP, _reduce  # noqa: E402
 
 ALGORITHMS = ("boruvka_kdtree", "prims_kdtree", "prims_balltree", "boruvka_balltree")
 

@@ -1,4 +1,4 @@
-"""Time roles.load.load_edges on large invented edge lists and print a table.
+"""Time roles.io.load.load_edges on large invented edge lists and print a table.
 
 Usage: python benchmarks/bench_load.py [--names=ascii|nfc|nfd] [ROWS ...]
 (default: ascii names, 100000 1000000 rows)
@@ -25,7 +25,7 @@ import networkx as nx
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-from roles.load import load_edges  # noqa: E402
+from roles.io.load import load_edges  # noqa: E402
 
 _PREFIX = {"ascii": "member", "nfc": "Zo\u00eb", "nfd": "Zoe\u0308"}
 

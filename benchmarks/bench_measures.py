@@ -32,7 +32,7 @@ import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
-from roles import formal, measures  # noqa: E402
+from roles.analysis import formal, measures  # noqa: E402
 
 
 def _graphs(n: int, seed: int = 1) -> tuple[nx.Graph, nx.DiGraph, dict, dict]:

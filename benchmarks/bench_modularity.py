@@ -1,8 +1,8 @@
-"""Compiled Louvain and modularity (roles.modularity) against networkx's.
+"""Compiled Louvain and modularity (roles.analysis.modularity) against networkx's.
 
 Planted-community graphs from ``bench_pipeline.py`` (mixing 0.2, average degree 20):
 wall seconds, communities found, modularity and NMI against the planted communities,
-for ``roles.modularity.louvain`` and ``networkx.community.louvain_communities`` (same
+for ``roles.analysis.modularity.louvain`` and ``networkx.community.louvain_communities`` (same
 seed), and the time of one modularity evaluation each way. The first call of the
 compiled code (loading numba's cache) is timed apart.
 
@@ -37,8 +37,8 @@ def main() -> None:
     from bench_pipeline import make_graph
     from sklearn.metrics import normalized_mutual_info_score
 
-    from roles.graph import to_csr
-    from roles.modularity import louvain, modularity
+    from roles.analysis.modularity import louvain, modularity
+    from roles.embedding.graph import to_csr
 
     _, first = _timed(louvain, to_csr(nx.karate_club_graph()), seed=0)
     print(f"first call (numba cache load or compile): {first:.2f} s\n")
@@ -61,7 +61,7 @@ def main() -> None:
             theirs[[where[v] for v in part]] = c
         m = graph.number_of_edges()
         for name, labels, t, q, tq in (
-            ("roles.modularity", ours, t_ours, q_ours, tq_ours),
+            ("roles.analysis.modularity", ours, t_ours, q_ours, tq_ours),
             ("networkx", theirs, t_nx, q_nx, tq_nx),
         ):
             nmi = normalized_mutual_info_score(truth, labels)

@@ -326,7 +326,7 @@ def _config(n: int, m: int, budget: bool) -> tuple[Any, str | None]:
         config = dataclasses.replace(config, cluster=clustering)
     if not budget:
         return config, None
-    from roles.budget import walk_budget
+    from roles.embedding.budget import walk_budget
 
     return walk_budget(n, m, config)
 
@@ -336,12 +336,12 @@ def _config(n: int, m: int, budget: bool) -> tuple[Any, str | None]:
 
 def part_stages(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
     """Every stage on its own, one after the other, on one core."""
-    from roles.cluster import cluster
-    from roles.compare import compare_views
-    from roles.embed import embed_walks
-    from roles.graph import to_csr
+    from roles.analysis.compare import compare_views
+    from roles.embedding.cluster import cluster
+    from roles.embedding.embed import embed_walks
+    from roles.embedding.graph import to_csr
+    from roles.embedding.walks import generate_walks, walk_lengths
     from roles.pipeline import stage_seeds
-    from roles.walks import generate_walks, walk_lengths
 
     meter = _Meter()
     t0 = time.perf_counter()
@@ -405,9 +405,9 @@ def part_stages(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
         row["nmi_planted"] = _community_nmi(truth, g.labels)
     community_of = dict(zip(csr.names, (groupings["far"].labels + 1).tolist(), strict=True))
     try:
-        from roles.measures import role_table
+        from roles.analysis.measures import role_table
     except ImportError as exc:
-        meter.rows.append({"stage": "measures", "skipped": f"roles.measures: {exc}"})
+        meter.rows.append({"stage": "measures", "skipped": f"roles.analysis.measures: {exc}"})
     else:
         with meter.stage("measures"):
             role_table(graph, community_of, seed=seeds[4])
@@ -417,7 +417,7 @@ def part_stages(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
         )
         row["k"] = comparison.k
     with meter.stage("Louvain check"):
-        from roles.modularity import louvain
+        from roles.analysis.modularity import louvain
 
         louvain(csr, seed=seeds[5])
     meter.sampler.stop()
@@ -438,8 +438,8 @@ def part_stages(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
 def part_whole(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
     """The whole report as ``roles report`` makes it: read, run, write every output."""
     import roles.report
-    from roles.export import write_report_outputs
-    from roles.load import load_edges
+    from roles.io.export import write_report_outputs
+    from roles.io.load import load_edges
     from roles.pipeline import run
 
     meter = _Meter()
@@ -614,7 +614,7 @@ def main(argv: list[str] | None = None) -> None:
     ap.add_argument(
         "--no-budget",
         action="store_true",
-        help="run at the configured walk settings without roles.budget.walk_budget",
+        help="run at the configured walk settings without roles.embedding.budget.walk_budget",
     )
     ap.add_argument("--window", type=int, help="skip-gram window instead of the default")
     ap.add_argument(

@@ -25,8 +25,8 @@ import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
-from roles.customers import final_customers  # noqa: E402
-from roles.measures import dependents  # noqa: E402
+from roles.analysis.customers import final_customers  # noqa: E402
+from roles.analysis.measures import dependents  # noqa: E402
 from roles.report import figures  # noqa: E402
 
 

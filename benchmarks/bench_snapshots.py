@@ -37,10 +37,10 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 
 from bench_pipeline import planted_partition  # noqa: E402
 
+from roles.analysis.snapshots import _members, _overlaps, compare_results  # noqa: E402
 from roles.config import Config  # noqa: E402
-from roles.load import load_edges  # noqa: E402
+from roles.io.load import load_edges  # noqa: E402
 from roles.pipeline import run  # noqa: E402
-from roles.snapshots import _members, _overlaps, compare_results  # noqa: E402
 
 
 def _overlap_split(a, b) -> tuple[float, float]:

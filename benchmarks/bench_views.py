@@ -16,11 +16,11 @@ import networkx as nx
 import numpy as np
 from sklearn.metrics import normalized_mutual_info_score
 
-from roles.cluster import cluster
+from roles.analysis.modularity import modularity as modularity_of
 from roles.config import Config
-from roles.embed import embed_views
-from roles.graph import to_csr
-from roles.modularity import modularity as modularity_of
+from roles.embedding.cluster import cluster
+from roles.embedding.embed import embed_views
+from roles.embedding.graph import to_csr
 from roles.pipeline import choose_community_view
 
 

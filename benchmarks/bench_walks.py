@@ -4,12 +4,12 @@ Walks: second-order node2vec steps per CPU-second (per core) on a Barabasi-Alber
 about 200,000 ties (networkx ``barabasi_albert_graph(20000, 10)``), unweighted and with
 random weights, for several (p, q), on one thread and on numba's threads.
 
-Skip-gram: gensim tokens per second for the two ways :func:`roles.embed.embed_walks` can
+Skip-gram: gensim tokens per second for the two ways :func:`roles.embedding.embed.embed_walks` can
 feed gensim ("iterable": Python lists of prebuilt token strings; "corpus_file": a
 temporary text file read by gensim's compiled reader), each alone and as two processes
-side by side, which is how :func:`roles.embed.embed_views` runs the two views.
+side by side, which is how :func:`roles.embedding.embed.embed_views` runs the two views.
 
-Views: both views through :func:`roles.embed.embed_views`, in one process and in two.
+Views: both views through :func:`roles.embedding.embed.embed_views`, in one process and in two.
 
 Run: ``.venv/bin/python benchmarks/bench_walks.py [--quick] [--only walks|skipgram|views]``.
 The machine this runs on may be shared: rates are given per CPU-second as well as per
@@ -33,9 +33,9 @@ import numba
 import numpy as np
 
 from roles.config import Config, EmbeddingConfig, WalkConfig
-from roles.embed import FEEDS, _write_corpus, embed_views, embed_walks
-from roles.graph import CSRGraph, to_csr
-from roles.walks import generate_walks, walk_lengths
+from roles.embedding.embed import FEEDS, _write_corpus, embed_views, embed_walks
+from roles.embedding.graph import CSRGraph, to_csr
+from roles.embedding.walks import generate_walks, walk_lengths
 
 WALK_SETTINGS = [(0.5, 2.0), (2.0, 0.5), (4.0, 0.25), (0.25, 4.0), (1.0, 2.0), (1.0, 0.5)]
 
@@ -287,7 +287,10 @@ def main() -> None:
         )
     if args.only in (None, "views"):
         report["views"] = bench_views(*sg_sizes)
-        print("\nboth views (roles.embed.embed_views): one process, or far view in a second one")
+        print(
+            "\nboth views (roles.embedding.embed.embed_views): one process, "
+            "or far view in a second one"
+        )
         print(_table(report["views"]))
     print("\n" + json.dumps(report, indent=1))
 

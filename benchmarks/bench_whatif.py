@@ -36,8 +36,8 @@ def _one(n: int, directed: bool) -> dict:
     import networkx as nx
     import numpy as np
 
-    from roles import whatif
-    from roles.measures import dependents
+    from roles.analysis import whatif
+    from roles.analysis.measures import dependents
 
     g = nx.barabasi_albert_graph(n, 10, seed=1)
     if directed:

@@ -4,8 +4,8 @@ Usage: python benchmarks/bench_xlsx.py [--nodes N ...] [--ties-per-member K] [--
 
 Data: the synthetic graph and node table of ``bench_export.make_data`` (the columns
 ``roles.pipeline.run`` gives, a few NaN cells). Each size writes nodes.csv
-(``roles.output.write_csv`` over ``roles.export._csv_rows``), then nodes.xlsx
-(``roles.spreadsheet.write_nodes_xlsx``: members sheet and communities sheet, the latter
+(``roles.io.output.write_csv`` over ``roles.io.export._csv_rows``), then nodes.xlsx
+(``roles.io.spreadsheet.write_nodes_xlsx``: members sheet and communities sheet, the latter
 built by ``community_rows``, which walks every tie once). Wall and CPU seconds; on a
 shared machine the wall time also measures the neighbours.
 """
@@ -23,10 +23,10 @@ sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
 from bench_export import make_data  # noqa: E402
 
-from roles.export import _csv_rows  # noqa: E402
-from roles.output import write_csv  # noqa: E402
+from roles.io.export import _csv_rows  # noqa: E402
+from roles.io.output import write_csv  # noqa: E402
+from roles.io.spreadsheet import community_rows, write_nodes_xlsx  # noqa: E402
 from roles.pipeline import Result  # noqa: E402
-from roles.spreadsheet import community_rows, write_nodes_xlsx  # noqa: E402
 
 
 def _timed(fn, *args) -> tuple[float, float]:  # type: ignore[no-untyped-def]

@@ -4,11 +4,12 @@ The main entry point is :func:`run`, which takes a networkx graph and returns a
 :class:`Result` (a node table as a pandas DataFrame and a summary dict).
 """
 
+from ._version import __version__ as __version__
+from .analysis.snapshots import compare_graphs
+from .analysis.whatif import Removal, Robustness, robustness, what_if
 from .config import Config, load_config
 from .errors import ConfigError, InputError, RolesError
 from .pipeline import Result, run
-from .snapshots import compare_graphs
-from .whatif import Removal, Robustness, robustness, what_if
 
 __all__ = [
     "run",
@@ -24,4 +25,3 @@ __all__ = [
     "robustness",
     "Robustness",
 ]
-__version__ = "0.1.0"

@@ -13,7 +13,7 @@ import sys
 from concurrent.futures.process import BrokenProcessPool
 from pathlib import Path
 
-from . import __version__
+from ._version import __version__
 from .errors import RolesError
 from .workers import exit_status, signals_stop_run
 

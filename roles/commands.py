@@ -1,6 +1,6 @@
 """The jobs behind the command line: files in, one finished output folder out.
 
-Nothing is written until every output is complete (see :mod:`roles.output`).
+Nothing is written until every output is complete (see :mod:`roles.io.output`).
 """
 
 from __future__ import annotations
@@ -15,12 +15,12 @@ import networkx as nx
 
 from .config import Config, load_config
 from .errors import InputError
-from .load import LoadedNetwork, check_group_column, load_edges, load_nodes
-from .names import shown_name
-from .output import OutputFolder
-from .pdfengine import check_pdf_engine
-from .privacy import WITHHELD, PseudonymKey, check_key_path, codes_for, write_key
+from .io.load import LoadedNetwork, check_group_column, load_edges, load_nodes
+from .io.names import shown_name
+from .io.output import OutputFolder
+from .io.privacy import WITHHELD, PseudonymKey, check_key_path, codes_for, write_key
 from .progress import StageBar
+from .report.pdfengine import check_pdf_engine
 
 __all__ = ["report", "embed", "compare"]
 
@@ -88,7 +88,7 @@ def _coded(
     prefix: str,
 ) -> tuple[nx.Graph, dict[str, Any] | None, dict[str, Any], dict[str, str]]:
     """Graph, attributes and source record with every name replaced by its code."""
-    from .privacy import pseudonymize, pseudonymize_attributes
+    from .io.privacy import pseudonymize, pseudonymize_attributes
 
     graph, codes = pseudonymize(graph, key, prefix)
     if attributes is not None:
@@ -103,8 +103,8 @@ def _coded(
 
 def _removed_members(args: argparse.Namespace, graph: nx.Graph) -> list[Any]:
     """The members of ``--remove`` and ``--remove-file``, checked against the network."""
-    from .namelist import read_names
-    from .whatif import check_members
+    from .analysis.whatif import check_members
+    from .io.namelist import read_names
 
     names = list(getattr(args, "remove", None) or [])
     option = "--remove"
@@ -122,7 +122,7 @@ def _check_workload(
     from .workload import check_workload
 
     if edges is not None:
-        from .budget import walk_budget
+        from .embedding.budget import walk_budget
 
         config = walk_budget(n_nodes, edges, config)[0]
     check_workload(n_nodes, config, insist=bool(getattr(args, "no_work_limit", False)))
@@ -132,7 +132,7 @@ def _before_work(
     args: argparse.Namespace, inputs: list[Path], *, command: str, expected: tuple[str, ...]
 ) -> tuple[OutputFolder, PseudonymKey | None]:
     """The checks of ``report`` and ``compare`` that come before any analysis: the PDF
-    engine, the output folder (see :mod:`roles.output`) and the key file."""
+    engine, the output folder (see :mod:`roles.io.output`) and the key file."""
     if not args.no_pdf:
         check_pdf_engine()  # stop now rather than after the analysis
     out = OutputFolder(
@@ -147,7 +147,7 @@ def _before_work(
 def report(args: argparse.Namespace) -> None:
     """``roles report``: load, analyse, write report.pdf/html, nodes.csv, summary.json,
     graph.graphml."""
-    from .export import write_report_outputs
+    from .io.export import write_report_outputs
     from .pipeline import run
 
     config = load_config(args.config).with_seed(args.seed)
@@ -215,9 +215,9 @@ def report(args: argparse.Namespace) -> None:
 
 def embed(args: argparse.Namespace) -> None:
     """``roles embed``: the two views' vectors (and walks) only."""
-    from .embed import embed_views
-    from .export import write_embed_outputs
-    from .graph import to_csr
+    from .embedding.embed import embed_views
+    from .embedding.graph import to_csr
+    from .io.export import write_embed_outputs
 
     config = load_config(args.config).with_seed(args.seed)
     walks = [f"{view}.walks.tsv" for view in ("local", "far")] if args.keep_walks else []
@@ -273,10 +273,10 @@ def _snapshot(
 
 def compare(args: argparse.Namespace) -> None:
     """``roles compare``: analyse two snapshots alike and report what changed."""
-    from .export import _write_json, write_report_outputs
+    from .analysis.snapshots import compare_results
+    from .io.export import _write_json, write_report_outputs
     from .pipeline import run
     from .report.changes import build_change_context, render_changes
-    from .snapshots import compare_results
 
     config = load_config(args.config).with_seed(args.seed)
     if args.min_group_size < 1:

@@ -145,12 +145,12 @@ def _far_default() -> ViewConfig:
 @dataclass(frozen=True)
 class ClusterConfig:
     """HDBSCAN settings; ``min_cluster_size = 0`` means the default (5 members, see
-    :func:`roles.cluster.default_min_cluster_size`).
+    :func:`roles.embedding.cluster.default_min_cluster_size`).
 
     ``fit_limit``: HDBSCAN is fitted on at most this many members, chosen at random,
     and every other member takes the verdict of its nearest fitted members; 0 fits
     every member. Below the limit, networks of more than 12,000 members are fitted on
-    60 % of them but at least 12,000 (:func:`roles.cluster.fitted_rows`). On a
+    60 % of them but at least 12,000 (:func:`roles.embedding.cluster.fitted_rows`). On a
     planted-community test network of 50,000 members a fit on 20,000 scored as well as
     a fit on all (NMI against the planted communities: local view 0.79-0.81 against
     0.80, far view 0.73 against 0.71) in a quarter of the time; at 20,000 members a fit

@@ -18,12 +18,12 @@ import networkx as nx
 import numpy as np
 import pandas as pd
 
-from .cluster import Grouping, Ties, cluster, ties_of
-from .compare import Comparison, compare_views, nearest_neighbours, neighbour_count
+from .analysis.compare import Comparison, compare_views, nearest_neighbours, neighbour_count
+from .analysis.modularity import louvain, modularity
 from .config import Config
+from .embedding.cluster import Grouping, Ties, cluster, ties_of
+from .embedding.graph import to_csr
 from .errors import InputError
-from .graph import to_csr
-from .modularity import louvain, modularity
 
 __all__ = ["Result", "run", "choose_community_view", "stage_seeds"]
 
@@ -39,7 +39,7 @@ def choose_community_view(modularity: Mapping[str, float]) -> str:
     """The view whose groups have the higher modularity on this network.
 
     Neither view wins everywhere. With the groups chosen with the network's ties
-    (:func:`roles.cluster.cluster`), mean NMI on LFR graphs of 1,000 members, mixing
+    (:func:`roles.embedding.cluster.cluster`), mean NMI on LFR graphs of 1,000 members, mixing
     0.1-0.5 (benchmarks/bench_groups.py, 2026-12-04): local 0.999 / 0.991 / 0.948 /
     0.679 / 0.238, far 0.999 / 0.990 / 0.943 / 0.635 / 0.209, the view of higher
     modularity 0.999 / 0.990 / 0.953 / 0.690 / 0.227: ahead of both at mixing 0.3 and
@@ -72,7 +72,7 @@ class Result:
     vectors : dict
         View name -> ndarray (n, d) of node vectors, rows in ``nodes`` order.
     groupings : dict
-        View name -> :class:`~roles.cluster.Grouping` over the connected nodes.
+        View name -> :class:`~roles.embedding.cluster.Grouping` over the connected nodes.
     comparison : Comparison
         Agreement of the two views.
     extras : dict
@@ -91,7 +91,7 @@ class Result:
 def stage_seeds(seed: int, n: int = 8) -> list[int]:
     """Independent 32-bit seeds for the stages, all derived from the one user seed.
 
-    Children 0 and 1 are the local and far walks (see :func:`roles.embed.embed_views`).
+    Children 0 and 1 are the local and far walks (see :func:`roles.embedding.embed.embed_views`).
     """
     return [int(c.generate_state(1)[0]) for c in np.random.SeedSequence(seed).spawn(n)]
 
@@ -115,7 +115,7 @@ class _Timer:
 def _versions() -> dict[str, str]:
     from importlib.metadata import PackageNotFoundError, version
 
-    from . import __version__
+    from ._version import __version__
 
     # The running code's own version (the distribution, roles-network-report, reads it
     # from the same place), then the libraries that shape the results.
@@ -234,7 +234,7 @@ def _group_view(
 ) -> _ViewWork:
     """Group one view's connected members and find their nearest neighbours.
 
-    Runs in the process that computed the view (:func:`roles.embed.embed_views_then`).
+    Runs in the process that computed the view (:func:`roles.embedding.embed.embed_views_then`).
     """
     x = np.asarray(embedding.vectors)[idx]
     seconds = {}
@@ -256,7 +256,7 @@ def _group_view(
 
 def network_ties(csr: Any, idx: np.ndarray) -> Ties:
     """The ties among the members ``idx``, read as undirected (as modularity reads them),
-    in the form :func:`roles.cluster.cluster` takes them.
+    in the form :func:`roles.embedding.cluster.cluster` takes them.
 
     A directed network's tie in either direction counts once (the larger weight when
     both directions are given).
@@ -279,7 +279,7 @@ def view_grouper(
     them (:func:`network_ties`) and the stage seeds of ``config.seed``, then (when
     ``k`` > 0) find each member's ``k`` nearest neighbours.
 
-    The confidence re-runs (:mod:`roles.confidence`) group with it too, so a re-run
+    The confidence re-runs (:mod:`roles.analysis.confidence`) group with it too, so a re-run
     differs from the run only in its seed.
     """
     seeds = stage_seeds(config.seed)
@@ -303,7 +303,7 @@ def _neighbour_lists(work: Mapping[str, _ViewWork]) -> tuple[np.ndarray, np.ndar
 
 def _trial_steps(csr: Any, config: Config, seed: int) -> float:
     """Fewest steps, on average over one walk per member, of either view's walks."""
-    from .walks import generate_walks, walk_lengths
+    from .embedding.walks import generate_walks, walk_lengths
 
     steps = []
     for i, view in enumerate(config.views.values()):
@@ -351,7 +351,7 @@ def run(
         Called with each stage's name as it starts.
     remove : sequence, optional
         Members to remove together in the one removal scenario; without it, the
-        default scenarios of :func:`roles.whatif.assess`.
+        default scenarios of :func:`roles.analysis.whatif.assess`.
 
     Returns
     -------
@@ -365,9 +365,9 @@ def run(
     >>> result.summary["communities"]           # doctest: +SKIP
     2
     """
-    from .embed import embed_views_then
-    from .findings import roles_withheld, single_points
-    from .measures import rank_bridges, rank_hubs, rank_traffic, role_table
+    from .analysis.findings import roles_withheld, single_points
+    from .analysis.measures import rank_bridges, rank_hubs, rank_traffic, role_table
+    from .embedding.embed import embed_views_then
 
     config = config or Config()
     if graph.number_of_nodes() == 0:
@@ -393,7 +393,7 @@ def run(
     if not all(isinstance(node, str) for node in graph):
         graph = nx.relabel_nodes(graph, {n: str(n) for n in graph}, copy=True)
     if remove:
-        from .whatif import check_members
+        from .analysis.whatif import check_members
 
         remove = check_members(graph, [str(v) for v in remove])  # before any work
     seeds = stage_seeds(config.seed)
@@ -407,7 +407,7 @@ def run(
         connected = np.asarray(degree > 0)
         isolated = [names[i] for i in np.flatnonzero(~connected)]
 
-    from .budget import walk_budget
+    from .embedding.budget import walk_budget
 
     config, walk_note = walk_budget(n, graph.number_of_edges(), config)  # user's walks kept
 
@@ -433,7 +433,7 @@ def run(
                     "(one trial walk per member and view)"
                 )
         # The groups are chosen with the ties the walks followed, read as undirected
-        # (roles.cluster); the confidence re-runs do the same.
+        # (roles.embedding.cluster); the confidence re-runs do the same.
         group_view = view_grouper(config, idx, k, network_ties(walk_csr, idx))
         views = embed_views_then(walk_csr, config, group_view)
     vectors = {view: np.asarray(e.vectors) for view, (e, _) in views.items()}
@@ -484,7 +484,7 @@ def run(
         config.confidence.scale_down,
     )
     if runs > 0 or randomisations > 0:
-        from .confidence import assess
+        from .analysis.confidence import assess
 
         with timer.stage("confidence"):
             confidence = assess(
@@ -543,7 +543,7 @@ def run(
 
     extras: dict[str, Any] = {}
     if group_by:
-        from .formal import brokerage, crosstab, ei_index, ei_test, formal_nmi
+        from .analysis.formal import brokerage, crosstab, ei_index, ei_test, formal_nmi
 
         # Members with no value in the column belong to no formal group.
         groups = {
@@ -580,7 +580,7 @@ def run(
         nodes.loc[nodes.role.isin(["hub-like", "bridge-like", "connector hub"]), "role"] = "member"
     traffic = rank_traffic(table)
     with timer.stage("what if"):
-        from .whatif import assess as what_if
+        from .analysis.whatif import assess as what_if
 
         extras["what_if"] = what_if(
             graph,
@@ -641,7 +641,7 @@ def run(
     summary["what_if"] = [r.as_summary() for r in extras["what_if"].scenarios]
     summary["robustness"] = extras["what_if"].robustness.as_summary()
     if graph.is_directed():
-        from .customers import final_customers
+        from .analysis.customers import final_customers
 
         spof = [d["node"] for d in summary["single_points_of_failure"]]
         summary["final_customers"] = [f.as_summary() for f in final_customers(graph, spof)]

@@ -43,7 +43,7 @@ from concurrent.futures import ProcessPoolExecutor
 from types import FrameType
 from typing import Any
 
-from . import output as _output
+from .io import output as _output
 
 __all__ = [
     "GRACE_SECONDS",

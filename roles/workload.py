@@ -5,9 +5,9 @@ Per view (the two views run side by side, one process each):
 
 - walk steps: ``nodes * walks_per_node * (walk_length - 1)``;
 - the walk matrix: ``nodes * walks_per_node * walk_length`` 32-bit node indices, held in
-  memory whole (:func:`roles.walks.generate_walks`), two of them at once;
+  memory whole (:func:`roles.embedding.walks.generate_walks`), two of them at once;
 - skip-gram work: ``pairs * (negative + 1) * dimensions`` multiply-adds, where ``pairs``
-  is :func:`roles.budget.skipgram_pairs` (``tokens * (window + 1) * epochs``): each
+  is :func:`roles.embedding.budget.skipgram_pairs` (``tokens * (window + 1) * epochs``): each
   (centre, context) pair updates one positive and ``negative`` sampled vectors of
   ``dimensions`` numbers (Mikolov et al., NeurIPS 2013).
 
@@ -35,7 +35,7 @@ __all__ = [
 
 #: Skip-gram multiply-adds per second on one core of the measured 2-core machine:
 #: about 1.3 million pairs per second at 16 dimensions and 5 negative samples
-#: (:mod:`roles.budget`, ``benchmarks/bench_pipeline.py``), times 6 * 16. Cost is taken
+#: (:mod:`roles.embedding.budget`, ``benchmarks/bench_pipeline.py``), times 6 * 16. Cost is taken
 #: as linear in ``dimensions`` and ``negative + 1``, which overstates it a little at
 #: small sizes, where gensim's fixed per-pair cost weighs more.
 SKIPGRAM_WORK_PER_SECOND = 1.3e6 * 6 * 16
@@ -103,7 +103,7 @@ def estimate(n_nodes: int, config: Config) -> Workload:
     """Estimate the walks and skip-gram work of ``config`` on ``n_nodes`` members.
 
     ``config`` is the configuration that will run (for ``roles report``, after
-    :func:`roles.budget.walk_budget`).
+    :func:`roles.embedding.budget.walk_budget`).
 
     Examples
     --------

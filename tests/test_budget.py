@@ -5,7 +5,8 @@ import dataclasses
 
 import pytest
 
-from roles.budget import (
+from roles.config import Config, EmbeddingConfig, WalkConfig, config_from_mapping
+from roles.embedding.budget import (
     MAX_EPOCHS,
     MAX_PAIRS_PER_VIEW,
     MIN_TOKENS_PER_VIEW,
@@ -16,7 +17,6 @@ from roles.budget import (
     training_floor,
     walk_budget,
 )
-from roles.config import Config, EmbeddingConfig, WalkConfig, config_from_mapping
 
 
 def _pairs(n: int, config: Config) -> int:

@@ -11,10 +11,10 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from roles.confidence import structure_test
-from roles.findings import roles_withheld, single_points
-from roles.formal import EI_MIN_GAP, ei_expected, ei_index, ei_test
-from roles.measures import (
+from roles.analysis.confidence import structure_test
+from roles.analysis.findings import roles_withheld, single_points
+from roles.analysis.formal import EI_MIN_GAP, ei_expected, ei_index, ei_test
+from roles.analysis.measures import (
     BRIDGE_SHARE,
     high_betweenness,
     rank_bridges,
@@ -22,7 +22,7 @@ from roles.measures import (
     rank_traffic,
     role_table,
 )
-from roles.whatif import cut_off_each
+from roles.analysis.whatif import cut_off_each
 
 # ------------------------------------------------------------------ bridge-like
 
@@ -306,7 +306,7 @@ def test_e_i_headline_only_for_groups_that_differ_from_their_size():
 def test_snapshot_changes_skip_withheld_roles():
     from types import SimpleNamespace
 
-    from roles.snapshots import _role_changes
+    from roles.analysis.snapshots import _role_changes
 
     nodes = pd.DataFrame({"node": ["a", "b"], "within_z": [3.0, 0.0], "betweenness": [0.5, 0]})
     clear = SimpleNamespace(nodes=nodes, summary={"hubs": ["a"], "bridges": ["a"]})

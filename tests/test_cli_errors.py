@@ -16,8 +16,8 @@ import networkx as nx
 import pytest
 from _cli import ROOT, roles
 
-from roles.manifest import MANIFEST
-from roles.output import OutputFolder
+from roles.io.manifest import MANIFEST
+from roles.io.output import OutputFolder
 
 
 def snapshot(folder: Path) -> dict[str, bytes]:

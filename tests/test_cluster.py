@@ -5,7 +5,7 @@ import pytest
 from sklearn.datasets import make_blobs
 from sklearn.metrics import adjusted_rand_score
 
-from roles.cluster import cluster, default_min_cluster_size
+from roles.embedding.cluster import cluster, default_min_cluster_size
 
 
 def test_well_separated_blobs_are_recovered():
@@ -49,7 +49,7 @@ def test_default_min_cluster_size(n):
 
 def test_renumbering_matches_the_rule():
     # Rule of _renumber_by_size: largest group first, ties by smaller original label.
-    from roles.cluster import _renumber_by_size
+    from roles.embedding.cluster import _renumber_by_size
 
     labels = np.array([7, 3, 3, 7, 9, 9, 9, 1])
     # Sizes: 9 -> 3, 3 -> 2, 7 -> 2, 1 -> 1; so 9->0, 3->1 (tie with 7, smaller), 7->2, 1->3.
@@ -66,9 +66,9 @@ def test_fit_limit_at_or_above_n_changes_nothing():
 
 
 def test_fitted_rows_follows_its_rule():
-    # Rule of roles.cluster.fitted_rows: min(limit, max(12000, ceil(0.6 n))), or all rows
+    # Rule of roles.embedding.cluster.fitted_rows: min(limit, max(12000, ceil(0.6 n))), or all rows
     # when that is not fewer than n; figures worked by hand from the rule.
-    from roles.cluster import fitted_rows
+    from roles.embedding.cluster import fitted_rows
 
     assert fitted_rows(20_000, None) == 20_000
     assert fitted_rows(12_000, 20_000) == 12_000  # floor reaches n: full fit

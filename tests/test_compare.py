@@ -4,7 +4,12 @@ import numpy as np
 import pytest
 from sklearn.metrics import adjusted_rand_score, normalized_mutual_info_score
 
-from roles.compare import compare_views, nearest_neighbours, neighbour_count, neighbour_overlap
+from roles.analysis.compare import (
+    compare_views,
+    nearest_neighbours,
+    neighbour_count,
+    neighbour_overlap,
+)
 
 
 def test_identical_views_overlap_fully():

@@ -22,9 +22,9 @@ import numpy as np
 import pytest
 from sklearn.metrics import adjusted_rand_score
 
-import roles.confidence as confidence
+import roles.analysis.confidence as confidence
 from roles.config import Config
-from roles.graph import to_csr
+from roles.embedding.graph import to_csr
 
 # --------------------------------------------------------------------------------------
 # Graphs and a reference run made as the pipeline makes it

@@ -16,11 +16,13 @@ def test_version_comes_from_the_package(capsys):
         build_parser().parse_args(["--version"])
     assert stop.value.code == 0
     assert capsys.readouterr().out.strip() == f"roles {package.__version__}"
-    # One source: pyproject.toml reads the version from roles.__version__.
+    # One source: pyproject.toml reads the version from roles._version.__version__.
     meta = tomllib.loads((ROOT / "pyproject.toml").read_text(encoding="utf-8"))
     assert "version" not in meta["project"]
     assert "version" in meta["project"]["dynamic"]
-    assert meta["tool"]["setuptools"]["dynamic"]["version"] == {"attr": "roles.__version__"}
+    assert meta["tool"]["setuptools"]["dynamic"]["version"] == {
+        "attr": "roles._version.__version__"
+    }
 
 
 @pytest.mark.parametrize("argv", [[], ["report"], ["compare"], ["embed"], ["demo"]])

@@ -6,9 +6,9 @@ import networkx as nx
 import pytest
 
 from roles._resources import data_dir
-from roles.customers import final_customers
-from roles.load import load_edges
-from roles.measures import dependents
+from roles.analysis.customers import final_customers
+from roles.analysis.measures import dependents
+from roles.io.load import load_edges
 
 
 def _brute_force(g: nx.DiGraph, s: str) -> tuple[set[str], set[str]]:

@@ -14,7 +14,7 @@ import numpy as np
 import pytest
 
 from roles.config import Config, EmbeddingConfig, WalkConfig
-from roles.embed import (
+from roles.embedding.embed import (
     FEEDS,
     Embedding,
     embed_views,
@@ -22,8 +22,8 @@ from roles.embed import (
     embed_walks,
     untrained_nodes,
 )
-from roles.graph import to_csr
-from roles.walks import generate_walks
+from roles.embedding.graph import to_csr
+from roles.embedding.walks import generate_walks
 
 SMALL = dict(dimensions=16, window=3, epochs=2, negative=5)
 
@@ -92,8 +92,8 @@ _CHILD = """
 import hashlib, sys
 import networkx as nx
 from roles.config import Config, EmbeddingConfig, WalkConfig
-from roles.embed import embed_views
-from roles.graph import to_csr
+from roles.embedding.embed import embed_views
+from roles.embedding.graph import to_csr
 config = Config(seed=5, walks=WalkConfig(4, 15), embedding=EmbeddingConfig(8, 3, 1, 5))
 views = embed_views(to_csr(nx.karate_club_graph()), config, processes=1)
 for name in ("local", "far"):

@@ -5,7 +5,7 @@ writes for a copy of the graph carrying the node table's columns, which is how t
 wrote graph.graphml up to commit 2e17776 (``_reference`` below is that code). Files are
 compared byte for byte and as read back by ``networkx.read_graphml``. Reference for
 nodes.csv: the same file written from ``itertuples`` rows through ``json_ready``, and the
-cell rules of ``roles.output.safe_cell`` (OWASP "CSV Injection").
+cell rules of ``roles.io.output.safe_cell`` (OWASP "CSV Injection").
 """
 
 from __future__ import annotations
@@ -20,16 +20,16 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from roles import export
 from roles.errors import RolesError
-from roles.export import _csv_rows, _write_graphml, json_ready
-from roles.output import write_csv
+from roles.io import export
+from roles.io.export import _csv_rows, _write_graphml, json_ready
+from roles.io.output import write_csv
 
 NS = "{http://graphml.graphdrawing.org/xmlns}"
 
 
 def _reference(graph: nx.Graph, nodes: pd.DataFrame, path: Path) -> None:
-    """graph.graphml as roles.export._graphml wrote it up to commit 2e17776."""
+    """graph.graphml as roles.io.export._graphml wrote it up to commit 2e17776."""
     g = graph.copy()
     table = nodes.set_index("node")
     for col in table.columns:

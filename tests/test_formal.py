@@ -15,8 +15,8 @@ import numpy as np
 import pytest
 from sklearn.metrics import normalized_mutual_info_score
 
+from roles.analysis.formal import BROKERAGE_ROLES, brokerage, crosstab, ei_index, formal_nmi
 from roles.errors import InputError
-from roles.formal import BROKERAGE_ROLES, brokerage, crosstab, ei_index, formal_nmi
 
 # ---------------------------------------------------------------------- brokerage
 

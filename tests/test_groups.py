@@ -17,12 +17,12 @@ import pytest
 from sklearn.metrics import normalized_mutual_info_score as nmi
 
 from roles import run
-from roles.cluster import cluster, ties_of
+from roles.analysis.modularity import louvain
 from roles.config import ConfidenceConfig, Config
-from roles.graph import to_csr
-from roles.modularity import louvain
+from roles.embedding.cluster import cluster, ties_of
+from roles.embedding.graph import to_csr
+from roles.embedding.refine import refine
 from roles.pipeline import stage_seeds
-from roles.refine import refine
 
 SEEDS = range(10)
 
@@ -57,7 +57,7 @@ def test_small_planted_teams_are_found_as_well_as_louvain_finds_them(size, p_in,
     # Four planted teams of 10-20 (networkx.planted_partition_graph, 40-80 members). Whenever
     # the structure test calls the structure clear, groups must be found; their NMI with the
     # planted teams, averaged over seeds 0-9, at least that of the pipeline's own Louvain
-    # check (roles.modularity.louvain with the same stage seed, which networkx's Louvain
+    # check (roles.analysis.modularity.louvain with the same stage seed, which networkx's Louvain
     # matches: tests/test_modularity.py).
     g = nx.planted_partition_graph(4, size, p_in, p_out, seed=graph_seed)
     truth = np.array([g.nodes[v]["block"] for v in g])

@@ -13,7 +13,7 @@ import networkx as nx
 import pytest
 
 from roles.errors import InputError
-from roles.load import LoadedNetwork, load_edges, load_nodes
+from roles.io.load import LoadedNetwork, load_edges, load_nodes
 
 
 def write(folder: Path, name: str, content: str | bytes) -> Path:

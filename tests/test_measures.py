@@ -22,8 +22,7 @@ import numba
 import numpy as np
 import pytest
 
-from roles.errors import InputError
-from roles.measures import (
+from roles.analysis.measures import (
     EXACT_LIMIT,
     _adjacency,
     _estimates,
@@ -38,6 +37,7 @@ from roles.measures import (
     structural_holes,
     within_module_z,
 )
+from roles.errors import InputError
 
 SEEDS = [0, 1, 2, 3, 4]
 

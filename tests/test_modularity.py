@@ -7,8 +7,8 @@ import numpy as np
 import pytest
 from sklearn.metrics import normalized_mutual_info_score
 
-from roles.graph import to_csr
-from roles.modularity import louvain, modularity
+from roles.analysis.modularity import louvain, modularity
+from roles.embedding.graph import to_csr
 
 
 def _parts(graph: nx.Graph, labels: np.ndarray) -> list[set]:

@@ -1,4 +1,4 @@
-"""The output guarantee of roles.output.OutputFolder (issue 6): nothing written for a
+"""The output guarantee of roles.io.output.OutputFolder (issue 6): nothing written for a
 failed or interrupted run, earlier outputs untouched, no temporary folder left; and
 formula-safe CSV cells (OWASP, "CSV Injection")."""
 
@@ -18,10 +18,10 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-import roles.output
+import roles.io.output
 from roles.errors import RolesError
-from roles.manifest import MANIFEST, read_manifest
-from roles.output import OutputFolder, safe_cell, write_csv
+from roles.io.manifest import MANIFEST, read_manifest
+from roles.io.output import OutputFolder, safe_cell, write_csv
 
 ROOT = Path(__file__).resolve().parent.parent
 
@@ -85,7 +85,7 @@ def test_earlier_outputs_replaced_as_a_whole(earlier):
 
 
 def test_swap_without_atomic_exchange(earlier, monkeypatch):
-    monkeypatch.setattr(roles.output, "_exchange", lambda a, b: False)
+    monkeypatch.setattr(roles.io.output, "_exchange", lambda a, b: False)
     with OutputFolder(earlier) as tmp:
         (tmp / "nodes.csv").write_text("new nodes")
         (tmp / "summary.json").write_text("new summary")
@@ -263,7 +263,7 @@ def test_path_over_4096_bytes_refused(tmp_path):
 def test_failed_moves_leave_no_staging_folder_on_any_retry(tmp_path, monkeypatch):
     out = tmp_path / "report"
     write_set(out, {"nodes.csv": "n1"})
-    monkeypatch.setattr(roles.output, "_exchange", lambda a, b: False)
+    monkeypatch.setattr(roles.io.output, "_exchange", lambda a, b: False)
     real_rename = os.rename
 
     def failing(src, dst):
@@ -311,7 +311,7 @@ def test_failed_run_creates_nothing(tmp_path):
 
 def test_signals_deferred_during_final_moves():
     done = []
-    with pytest.raises(KeyboardInterrupt), roles.output._signals_deferred():
+    with pytest.raises(KeyboardInterrupt), roles.io.output._signals_deferred():
         os.kill(os.getpid(), signal.SIGINT)
         time.sleep(0.05)
         done.append("moves finished")  # not cut short by the Ctrl-C
@@ -377,7 +377,7 @@ _SLOW_WRITER = textwrap.dedent(
     """
     import sys, time
     sys.path.insert(0, sys.argv[2])
-    from roles.output import OutputFolder
+    from roles.io.output import OutputFolder
     with OutputFolder(sys.argv[1]) as tmp:
         (tmp / "nodes.csv").write_text("new, incomplete")
         print("writing", flush=True)

@@ -6,9 +6,9 @@ import networkx as nx
 import pytest
 
 import roles.commands
-import roles.pdfengine
+import roles.report.pdfengine
 from roles.cli import main
-from roles.pdfengine import install_hint
+from roles.report.pdfengine import install_hint
 
 # What cffi says when WeasyPrint's import cannot open Pango (WeasyPrint's
 # troubleshooting page quotes this form).
@@ -20,7 +20,7 @@ def no_engine(monkeypatch):
     def fail() -> None:
         raise OSError(MISSING)
 
-    monkeypatch.setattr(roles.pdfengine, "_start_engine", fail)
+    monkeypatch.setattr(roles.report.pdfengine, "_start_engine", fail)
 
 
 @pytest.fixture
@@ -77,16 +77,16 @@ def test_no_pdf_compare_writes_everything_else(edges, tmp_path, no_engine):
 
 def test_engine_present_here():
     # This machine has Pango (the tests render PDFs elsewhere): the check passes.
-    roles.pdfengine.check_pdf_engine()
+    roles.report.pdfengine.check_pdf_engine()
 
 
 def test_missing_weasyprint_itself(monkeypatch):
     def fail() -> None:
         raise ModuleNotFoundError("No module named 'weasyprint'", name="weasyprint")
 
-    monkeypatch.setattr(roles.pdfengine, "_start_engine", fail)
-    with pytest.raises(roles.pdfengine.PdfEngineError, match="pip install weasyprint"):
-        roles.pdfengine.check_pdf_engine()
+    monkeypatch.setattr(roles.report.pdfengine, "_start_engine", fail)
+    with pytest.raises(roles.report.pdfengine.PdfEngineError, match="pip install weasyprint"):
+        roles.report.pdfengine.check_pdf_engine()
 
 
 @pytest.mark.parametrize(

@@ -57,7 +57,7 @@ def test_karate_faction_leaders_lead_the_hub_list(karate_result):
 
 def test_betweenness_is_normalised_as_networkx_does(karate_result, karate):
     # Reference: networkx.betweenness_centrality (normalized=True), Brandes (2001), with
-    # tie strength read as closeness: distance = 1 / weight (roles.measures.betweenness).
+    # tie strength read as closeness: distance = 1 / weight (roles.analysis.measures.betweenness).
     # Distances as exact fractions, so paths of equal length tie exactly as they should
     # (with floats, 1/3 + 1/6 and 1/2 can differ in the last bit).
     g = karate.copy()

@@ -21,7 +21,7 @@ import numpy as np
 import pytest
 from _cli import roles
 
-from roles.privacy import PseudonymKey, codes_for, suppress_small_groups
+from roles.io.privacy import PseudonymKey, codes_for, suppress_small_groups
 
 FIRST = ["Brandolf", "Quiselle", "Tormund", "Yvarra", "Osgrim", "Peldora", "Zanthe", "Korvell"]
 LAST = ["Quistov", "Marrowind", "Telvaris", "Ostrager", "Vundahl", "Ebbecroft"]

@@ -8,7 +8,7 @@ import pandas as pd
 import pytest
 
 from roles.errors import InputError
-from roles.privacy import check_key_path, hide_small_group_values
+from roles.io.privacy import check_key_path, hide_small_group_values
 
 
 def test_small_group_values_leave_the_node_table():

@@ -491,7 +491,7 @@ def test_markup_that_points_outside_is_not_fetched(tmp_path):
 def test_summary_says_how_many_communities_come_back(report, karate_result):
     _, pages, _ = report
     s = karate_result.summary
-    per = s["stability"]["communities"]  # written by roles.confidence
+    per = s["stability"]["communities"]  # written by roles.analysis.confidence
     stable = sum(1 for c in per.values() if c["verdict"] == "stable")
     glance = _flat(next(p for p in pages[1:] if "At a glance" in p))
     if stable == len(per):

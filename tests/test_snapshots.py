@@ -12,7 +12,7 @@ import itertools
 import networkx as nx
 import pytest
 
-from roles.snapshots import (
+from roles.analysis.snapshots import (
     community_events,
     compare_graphs,
     member_changes,
@@ -172,7 +172,7 @@ def test_two_seeds_on_one_snapshot_show_no_change():
 
     a = run(old, config=Config().with_seed(1))
     b = run(old, config=Config().with_seed(2))
-    from roles.snapshots import compare_results
+    from roles.analysis.snapshots import compare_results
 
     changes = compare_results(a, b)
     assert {e.event for e in changes.events} == {"continuation"}

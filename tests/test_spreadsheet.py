@@ -11,8 +11,8 @@ import pytest
 
 import roles.report
 from roles import run
-from roles.export import write_report_outputs
-from roles.output import safe_cell
+from roles.io.export import write_report_outputs
+from roles.io.output import safe_cell
 
 # Names a spreadsheet would evaluate (OWASP's CSV-injection list), mixed scripts, and
 # text that looks like a number.

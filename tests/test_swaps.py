@@ -1,4 +1,4 @@
-"""Degree-preserving double edge swaps (roles.swaps) against exact and networkx references.
+"""Degree-preserving double edge swaps (roles.analysis.swaps) against exact and networkx references.
 
 Sources of the expected answers:
 - The move is that of Milo et al. (arXiv:cond-mat/0312028, 2003) as networkx's
@@ -26,8 +26,8 @@ import numpy as np
 import pytest
 from scipy.stats import chisquare
 
-from roles.graph import to_csr
-from roles.swaps import double_edge_swap, edges_to_csr_arrays
+from roles.analysis.swaps import double_edge_swap, edges_to_csr_arrays
+from roles.embedding.graph import to_csr
 
 
 def _ties(g: nx.Graph) -> tuple[np.ndarray, np.ndarray, int]:

@@ -10,9 +10,9 @@ import numpy as np
 import pytest
 from scipy.stats import chisquare
 
+from roles.embedding.graph import to_csr
+from roles.embedding.walks import generate_walks, kernel, walk_lengths, walks_to_names
 from roles.errors import ConfigError, InputError
-from roles.graph import to_csr
-from roles.walks import generate_walks, kernel, walk_lengths, walks_to_names
 
 # Local and far views of the default configuration (roles.config), plus settings with
 # p != 1: the return to t as the largest bias (drawn apart from the envelope, twice, with

@@ -13,9 +13,9 @@ import networkx as nx
 import numpy as np
 import pytest
 
+from roles.analysis.measures import dependents
+from roles.analysis.whatif import assess, check_members, robustness, what_if, what_if_many
 from roles.errors import InputError
-from roles.measures import dependents
-from roles.whatif import assess, check_members, robustness, what_if, what_if_many
 
 SEEDS = range(10)
 
@@ -344,7 +344,7 @@ def test_unknown_name_error_exit_2_nothing_written(tmp_path, extra, unknown):
 
 
 def test_remove_file_reading_rules(tmp_path):
-    from roles.namelist import read_names
+    from roles.io.namelist import read_names
 
     f = tmp_path / "gone.txt"
     # UTF-8 with a byte-order mark, blank lines, spaces, a quoted name with a comma.

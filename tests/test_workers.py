@@ -113,12 +113,12 @@ def test_sigkill_during_embedding_leaves_no_process(big_edges, tmp_path):
 
 @pytest.mark.parametrize(("signum", "status"), [(signal.SIGINT, 130), (signal.SIGTERM, 143)])
 def test_stop_signal_during_embedding(big_edges, tmp_path, signum, status):
-    from roles.manifest import MANIFEST, fingerprint, write_manifest
+    from roles.io.manifest import MANIFEST, fingerprint, write_manifest
 
     out = tmp_path / "report"
     out.mkdir()
     (out / "summary.json").write_text("earlier run")
-    # recorded as an earlier run's output, as the tool records its own (roles.manifest)
+    # recorded as an earlier run's output, as the tool records its own (roles.io.manifest)
     write_manifest(
         out, {"summary.json": [fingerprint(out / "summary.json")]}, command="report", complete=True
     )

@@ -12,9 +12,9 @@ from _cli import roles as run_roles
 import roles.cli
 import roles.commands
 from roles.config import P_Q_RANGE, Config, EmbeddingConfig, ViewConfig, WalkConfig
+from roles.embedding.graph import to_csr
+from roles.embedding.walks import generate_walks
 from roles.errors import ConfigError
-from roles.graph import to_csr
-from roles.walks import generate_walks
 from roles.workload import (
     INSIST_OPTION,
     MAX_SKIPGRAM_WORK,
@@ -80,7 +80,7 @@ def test_defaults_pass_up_to_a_million_members():
 
 
 def _budgeted(n: int) -> Config:
-    from roles.budget import walk_budget
+    from roles.embedding.budget import walk_budget
 
     return walk_budget(n, 10 * n, Config())[0]
 

@@ -1,6 +1,6 @@
 """Two snapshots' changes -> the change report (report.html, report.pdf).
 
-Reads :class:`roles.snapshots.Changes` and the two runs' results; computes nothing the
+Reads :class:`roles.analysis.snapshots.Changes` and the two runs' results; computes nothing the
 findings rest on, only selects, orders and words them, and draws the flow of members
 between the two snapshots' communities.
 """
@@ -12,7 +12,7 @@ from collections.abc import Mapping, Sequence
 from pathlib import Path
 from typing import Any
 
-from ..snapshots import Changes, CommunityEvent
+from ..analysis.snapshots import Changes, CommunityEvent
 from .context import VOCABULARY, _fmt, community_names
 from .figures import Figure, _draw, _label
 from .render import render_html, write_pdf

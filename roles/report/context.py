@@ -425,7 +425,7 @@ def _roles(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
             annotate=annotate,
             words=v,
         )
-    from ..measures import BRIDGE_SHARE, HUB_Z
+    from ..analysis.measures import BRIDGE_SHARE, HUB_Z
 
     return {
         "hub_z": _fmt(HUB_Z, 1),
@@ -694,7 +694,7 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
         for g in sorted(ei, key=lambda g: (ei[g], g))
     ]
     # Headlines: only groups whose E-I index differs clearly from what their size
-    # predicts (roles.formal.ei_test), the largest gap first.
+    # predicts (roles.analysis.formal.ei_test), the largest gap first.
     inward = sorted((r for r in ei_rows if r["verdict"] == "more inward"), key=lambda r: r["gap"])
     outward = sorted(
         (r for r in ei_rows if r["verdict"] == "more outward"), key=lambda r: -r["gap"]
@@ -946,7 +946,7 @@ def _structure(st: Any) -> dict[str, Any] | None:
             else ("clear community structure" if st.get("clear") else "not clear"),
         ),
         # The structure test counts every tie once, whatever its weight (the swaps move
-        # ties, not weights: roles.confidence); section 7's other table uses weights.
+        # ties, not weights: roles.analysis.confidence); section 7's other table uses weights.
         ("Modularity of the communities, each tie counted once", _fmt(mod.get("communities"))),
         ("Best modularity found in the network (ties counted once)", _fmt(mod.get("best_found"))),
         (

@@ -1,6 +1,6 @@
 """The "if members were gone" section: removal scenarios and robustness in words.
 
-Reads the :class:`~roles.whatif.WhatIf` the pipeline stored in ``Result.extras`` and
+Reads the :class:`~roles.analysis.whatif.WhatIf` the pipeline stored in ``Result.extras`` and
 turns it into short tables, sentences and the robustness figure. Nothing here is
 computed that the findings rest on; it only selects, rounds and words.
 """
@@ -12,8 +12,8 @@ from typing import Any
 
 import numpy as np
 
+from ..analysis.whatif import Removal, RobustnessCurve, WhatIf
 from ..pipeline import Result
-from ..whatif import Removal, RobustnessCurve, WhatIf
 from . import figures
 
 __all__ = ["what_if_context", "SECTION_TITLE", "NAMES_SHOWN"]

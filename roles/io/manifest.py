@@ -9,7 +9,7 @@ of the same name in a folder written by an older version of the tool (which wrot
 manifest) all count as the user's and are never replaced or deleted.
 
 While outputs are moved into a folder that also holds other files (see
-:mod:`roles.output`), the manifest lists the earlier and the new fingerprints of every
+:mod:`roles.io.output`), the manifest lists the earlier and the new fingerprints of every
 name and says ``"complete": false``, so that a run cut short in those few renames leaves a
 folder the next run still recognises as its own.
 """

@@ -1,4 +1,4 @@
-"""node2vec walks: the driver around the compiled kernel in :mod:`roles.walks.kernel`.
+"""node2vec walks: the driver around the compiled kernel in :mod:`roles.embedding.walks.kernel`.
 
 The driver checks the parameters, builds the per-row sampling tables once, chooses the
 start nodes and the random key from the seed, and calls the kernel. Names appear only
@@ -11,8 +11,8 @@ import math
 
 import numpy as np
 
-from ..config import P_Q_RANGE
-from ..errors import ConfigError, InputError
+from ...config import P_Q_RANGE
+from ...errors import ConfigError, InputError
 from ..graph import CSRGraph
 from . import kernel as _kernel
 
@@ -128,7 +128,7 @@ def generate_walks(
     Examples
     --------
     >>> import networkx as nx
-    >>> from roles.graph import to_csr
+    >>> from roles.embedding.graph import to_csr
     >>> walks = generate_walks(to_csr(nx.cycle_graph(4)), walks_per_node=2,
     ...                        walk_length=5, p=1.0, q=2.0, seed=1)
     >>> walks.shape

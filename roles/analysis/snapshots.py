@@ -561,6 +561,6 @@ def compare_graphs(old: nx.Graph, new: nx.Graph, **run_options: Any) -> tuple[An
     >>> {e.event for e in ch.events}      # doctest: +SKIP
     {'continuation'}
     """
-    from .pipeline import run
+    from ..pipeline import run
 
     return (a := run(old, **run_options)), (b := run(new, **run_options)), compare_results(a, b)

@@ -26,7 +26,7 @@ def roles_withheld(grouped: bool, structure: Any) -> dict[str, str] | None:
     grouped : bool
         Whether the chosen view found any groups.
     structure : StructureTest or None
-        The structure test of :mod:`roles.confidence`; None when it did not run.
+        The structure test of :mod:`roles.analysis.confidence`; None when it did not run.
 
     Returns
     -------
@@ -52,7 +52,7 @@ def roles_withheld(grouped: bool, structure: Any) -> dict[str, str] | None:
 def single_points(graph: nx.Graph, nodes: pd.DataFrame, top: int = 50) -> list[dict[str, Any]]:
     """The ``top`` members with the most dependents, with whom each would cut off.
 
-    ``cut_off`` follows :func:`roles.whatif.what_if` (all names, sorted);
+    ``cut_off`` follows :func:`roles.analysis.whatif.what_if` (all names, sorted);
     ``one_tie_each`` is True when every member cut off has a single recorded tie (one
     neighbour, whatever the direction): thin evidence, as one missing record would
     undo it.

@@ -19,7 +19,7 @@ import numpy as np
 import pandas as pd
 from sklearn.metrics import normalized_mutual_info_score
 
-from .errors import InputError
+from ..errors import InputError
 
 __all__ = [
     "BROKERAGE_ROLES",

@@ -10,7 +10,7 @@ from __future__ import annotations
 import shutil
 import sys
 
-from .errors import RolesError
+from ..errors import RolesError
 
 __all__ = ["PdfEngineError", "check_pdf_engine", "install_hint"]
 

@@ -1,7 +1,7 @@
 """Result -> files: nodes.csv, nodes.xlsx, summary.json, graph.graphml, the report, the vectors.
 
 Writers only read what the pipeline computed. CSV cells are made safe to open in a
-spreadsheet by :func:`roles.output.write_csv`. graph.graphml and nodes.csv are written a
+spreadsheet by :func:`roles.io.output.write_csv`. graph.graphml and nodes.csv are written a
 block of elements or rows at a time, so that a network of a million ties needs no copy of
 the graph, no XML tree and no list of all rows in memory.
 """
@@ -23,11 +23,11 @@ import networkx as nx
 import numpy as np
 import pandas as pd
 
-from .config import Config
-from .errors import RolesError
-from .graph import CSRGraph
+from ..config import Config
+from ..embedding.graph import CSRGraph
+from ..errors import RolesError
+from ..pipeline import Result
 from .output import write_csv
-from .pipeline import Result
 from .spreadsheet import community_rows, write_nodes_xlsx
 
 __all__ = ["write_report_outputs", "write_embed_outputs", "json_ready"]
@@ -387,7 +387,7 @@ def _csv_rows(table: pd.DataFrame) -> Iterator[tuple[Any, ...]]:
     time (numpy columns in bulk) and a block of rows at a time.
 
     The cells stay Python values (never pre-formatted text), so
-    :func:`roles.output.write_csv` makes them safe exactly as before.
+    :func:`roles.io.output.write_csv` makes them safe exactly as before.
     """
     columns = []
     for c in table.columns:
@@ -426,7 +426,7 @@ def write_report_outputs(
 ) -> None:
     """Write every output of ``roles report`` into ``folder`` (``report.pdf`` only
     when ``pdf``)."""
-    from .report import render_report
+    from ..report import render_report
 
     folder = Path(folder)
     formal = result.summary.get("formal")
@@ -481,7 +481,7 @@ def write_embed_outputs(
     keep_walks: bool,
 ) -> None:
     """Write ``local.csv``, ``far.csv``, ``summary.json`` (and the walks) into ``folder``."""
-    from .walks import walks_to_names
+    from ..embedding.walks import walks_to_names
 
     folder = Path(folder)
     info: dict[str, Any] = {}

@@ -157,7 +157,7 @@ Ties = tuple[np.ndarray, np.ndarray, np.ndarray]
 def ties_of(indptr: np.ndarray, indices: np.ndarray, weights: np.ndarray, rows: np.ndarray) -> Ties:
     """The ties among ``rows`` of an undirected CSR matrix, renumbered ``0..len(rows)-1``.
 
-    ``indptr, indices, weights`` as :class:`roles.graph.CSRGraph` stores an undirected
+    ``indptr, indices, weights`` as :class:`roles.embedding.graph.CSRGraph` stores an undirected
     network (each tie in both rows). Ties to members outside ``rows`` are dropped.
 
     Examples
@@ -194,7 +194,7 @@ def _tree_selection(
     1. Every row goes to a leaf of the condensed tree: its own when it fell out of a
        leaf, else the leaf of most of its 10 nearest leaf members (distance-weighted,
        as :func:`_attach`).
-    2. Members move between leaves while modularity rises (:func:`roles.refine.refine`).
+    2. Members move between leaves while modularity rises (:func:`roles.embedding.refine.refine`).
     3. The set of tree clusters, none inside another and together covering every leaf,
        of highest modularity is kept. Modularity is a sum over groups of
        ``L_c / 2m - (D_c / 2m)^2`` (``L_c`` the tie weight inside group ``c``, both
@@ -454,7 +454,7 @@ def cluster(
         The network's ties among the rows (:func:`ties_of`). With them the groups are
         read from HDBSCAN's condensed tree by modularity on the network
         (:func:`_tree_selection`) and every member may then move to the group that
-        raises modularity most (:func:`roles.refine.refine`); without them, HDBSCAN's
+        raises modularity most (:func:`roles.embedding.refine.refine`); without them, HDBSCAN's
         own selection and the noise attached by its nearest neighbours.
 
     Returns

@@ -33,7 +33,7 @@ from typing import Any
 
 import networkx as nx
 
-from .errors import InputError
+from ..errors import InputError
 
 __all__ = [
     "KEY_ROW",

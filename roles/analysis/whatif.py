@@ -22,7 +22,7 @@ import networkx as nx
 import numba
 import numpy as np
 
-from .errors import InputError
+from ..errors import InputError
 
 __all__ = [
     "Removal",

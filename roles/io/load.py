@@ -48,7 +48,7 @@ import networkx as nx
 import numpy as np
 from networkx.readwrite.graphml import GraphMLReader
 
-from .errors import InputError
+from ..errors import InputError
 from .names import lookalike_groups, nfc, nfc_changes, shown_name, skeleton
 
 __all__ = [
@@ -119,7 +119,7 @@ class LoadedNetwork:
         ``names_trimmed``, ``columns_ignored``, ``names_normalised`` (distinct names
         written in another Unicode form than NFC, merged with their NFC form),
         ``lookalike_names`` (names that differ from another only by invisible characters
-        or compatibility forms, see :mod:`roles.names`), ``nodes``, ``edges``.
+        or compatibility forms, see :mod:`roles.io.names`), ``nodes``, ``edges``.
     weight_column : str or None
         The column (or edge attribute) the weights came from; ``None`` when every tie
         counts 1.

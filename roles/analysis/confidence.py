@@ -4,9 +4,9 @@ Two questions a reader of the report asks before acting on a group:
 
 1. **Does the network have community structure at all?** Even random graphs show high
    modularity by chance [1]_. :func:`structure_test` compares the best modularity an
-   optimiser (Louvain [2]_, compiled in :mod:`roles.modularity`) finds on the network
+   optimiser (Louvain [2]_, compiled in :mod:`roles.analysis.modularity`) finds on the network
    with the best the same optimiser finds on degree-preserving randomisations of it
-   (double edge swaps [3]_, compiled in :mod:`roles.swaps`), as Guimera, Sales-Pardo &
+   (double edge swaps [3]_, compiled in :mod:`roles.analysis.swaps`), as Guimera, Sales-Pardo &
    Amaral do [1]_, and asks whether the network holds clearly more modular partitions
    than the randomised networks do.
 2. **Would the groups come back with another seed?** :func:`stability` re-runs the
@@ -50,11 +50,11 @@ from typing import Any
 import networkx as nx
 import numpy as np
 
-from .config import Config
-from .graph import CSRGraph
+from ..config import Config
+from ..embedding.graph import CSRGraph
+from ..workers import worker_pool
 from .modularity import louvain, modularity
 from .swaps import Swapped, double_edge_swap, edges_to_csr_arrays
-from .workers import worker_pool
 
 __all__ = [
     "StructureTest",
@@ -222,7 +222,7 @@ class StructureTest:
                 "communities": _num(self.modularity_communities),
                 "best_found": _num(self.modularity_best),
                 "weighted": False,
-                "optimiser": "Louvain, compiled (roles.modularity.louvain, resolution 1)",
+                "optimiser": "Louvain, compiled (roles.analysis.modularity.louvain, resolution 1)",
             },
             "randomised": {
                 "mean": _num(self.null_mean),
@@ -230,7 +230,8 @@ class StructureTest:
                 f"quantile_{round(NULL_QUANTILE * 100)}": _num(self.null_quantile),
                 "values": [_num(v) for v in self.null],
                 "method": (
-                    "degree-preserving double edge swaps, compiled (roles.swaps.double_edge_swap)"
+                    "degree-preserving double edge swaps, compiled "
+                    "(roles.analysis.swaps.double_edge_swap)"
                 ),
                 "swaps_per_edge": self.swaps_per_edge,
                 "short_of_swaps": self.swaps_short,
@@ -324,7 +325,7 @@ def _csr(names: tuple[str, ...], u: np.ndarray, v: np.ndarray) -> CSRGraph:
 
 
 def _best_modularity(csr: CSRGraph, seed: int) -> float:
-    """Modularity of the Louvain partition (compiled, :mod:`roles.modularity`)."""
+    """Modularity of the Louvain partition (compiled, :mod:`roles.analysis.modularity`)."""
     return modularity(csr, louvain(csr, seed=seed))
 
 
@@ -401,10 +402,10 @@ def structure_test(
     finds in a random graph can be high, so a high figure alone says little. They
     compare the network's modularity with that of random networks with the same degrees.
     Here both the network and each randomised copy are partitioned by the same
-    optimiser (the Louvain method [3]_, compiled: :func:`roles.modularity.louvain`, with
+    optimiser (the Louvain method [3]_, compiled: :func:`roles.analysis.modularity.louvain`, with
     a fixed seed), so the comparison asks "does the optimiser find more than it would in
     a network without structure?". Randomised networks are made by double edge swaps
-    [4]_ (:func:`roles.swaps.double_edge_swap`, compiled, the move of networkx's
+    [4]_ (:func:`roles.analysis.swaps.double_edge_swap`, compiled, the move of networkx's
     ``double_edge_swap``: two ties a-b, c-d become a-c, b-d when neither exists), which
     keep every node's degree. On small test networks (LFR, Erdos-Renyi and
     Barabasi-Albert graphs of 250 to 300 nodes, 40 randomisations each) the randomised
@@ -739,8 +740,8 @@ def _rerun(
     csr: CSRGraph, config: Config, idx: np.ndarray, processes: int | None = None
 ) -> dict[str, np.ndarray]:
     """Both views' group labels over ``idx``, made exactly as the pipeline makes them."""
-    from .embed import embed_views_then
-    from .pipeline import network_ties, view_grouper
+    from ..embedding.embed import embed_views_then
+    from ..pipeline import network_ties, view_grouper
 
     group = view_grouper(config, idx, 0, network_ties(csr, idx))
     done = embed_views_then(csr, config, group, processes=processes)
@@ -817,8 +818,8 @@ def stability(
         The main run's configuration. Re-run ``k`` uses
         ``dataclasses.replace(config, seed=s_k)``, with ``s_k`` drawn from
         ``numpy.random.SeedSequence(seed)``, and is made exactly as the pipeline makes
-        its groups (:func:`roles.embed.embed_views_then`, each view grouped by
-        :func:`roles.cluster.cluster` on the members with ties, with the run's
+        its groups (:func:`roles.embedding.embed.embed_views_then`, each view grouped by
+        :func:`roles.embedding.cluster.cluster` on the members with ties, with the run's
         ``fit_limit``, seeded by :func:`roles.pipeline.stage_seeds`).
     runs : int, default 5
         Re-runs asked for; large networks get fewer (:func:`stability_budget`).
@@ -837,7 +838,7 @@ def stability(
         after the other). By default 2 when there are two or more re-runs of at least
         500,000 walk steps each, on a machine with two or more cores; otherwise the
         re-runs run one after the other and each embeds and groups its two views side
-        by side when its walks are large enough (:func:`roles.embed.embed_views_then`).
+        by side when its walks are large enough (:func:`roles.embedding.embed.embed_views_then`).
         The figures do not depend on it.
 
     Returns

@@ -5,7 +5,7 @@ self-loops aside). For a member ``s`` this module lists the final customers down
 of it (*reached*: some supply path runs from ``s`` to them) and, among those, the ones
 ``s`` *cuts off*: every supply path from every source to them runs through ``s``, so
 they are among the members it dominates (Lengauer & Tarjan 1979; Allesina & Bodini
-2004), which is how :func:`roles.measures.dependents` counts them.
+2004), which is how :func:`roles.analysis.measures.dependents` counts them.
 """
 
 from __future__ import annotations
@@ -56,7 +56,7 @@ def _top_members(G: nx.DiGraph) -> list[Hashable]:
 
     A source (no suppliers) is such a group on its own; a cycle of members that supply
     one another with no outside supplier is another, and each of its members is fed
-    by the virtual origin, as in :func:`roles.measures.dependents`.
+    by the virtual origin, as in :func:`roles.analysis.measures.dependents`.
     """
     cond = nx.condensation(G)
     return [v for c, d in cond.in_degree() if d == 0 for v in cond.nodes[c]["members"]]

@@ -31,7 +31,7 @@ every move is a rename within one file system):
    a time. The set as a whole is then not replaced in one step: a crash during those few
    renames can leave some earlier and some new files, under a manifest marked incomplete
    that lists both, so the next run still replaces them all.
-5. What is the tool's is decided by the folder's manifest (:mod:`roles.manifest`): an
+5. What is the tool's is decided by the folder's manifest (:mod:`roles.io.manifest`): an
    entry is replaced or removed only when the manifest names it and its contents still
    match. Anything else (a folder in the place of an output file, an output the user
    edited, files of a version of the tool that wrote no manifest) is never deleted or
@@ -59,7 +59,7 @@ from pathlib import Path
 from types import TracebackType
 from typing import Any
 
-from .errors import ConfigError, RolesError
+from ..errors import ConfigError, RolesError
 from .manifest import MANIFEST, fingerprint, read_manifest, write_manifest
 
 __all__ = ["OutputFolder", "safe_cell", "write_csv"]
@@ -144,7 +144,7 @@ def write_csv(
     excel_bom : bool
         Start the file with a UTF-8 byte-order mark. Excel needs it to show non-ASCII
         names correctly when the file is opened by double-click; pandas and
-        :func:`roles.load.load_edges` read it fine, but a reader using the :mod:`csv`
+        :func:`roles.io.load.load_edges` read it fine, but a reader using the :mod:`csv`
         module with ``encoding='utf-8'`` then sees it in the first column name.
 
     Raises

@@ -1,6 +1,6 @@
 """A file of member names, one a line (``--remove-file``), read as the edge list is read.
 
-Same rules as a CSV edge list (:mod:`roles.load`): UTF-8 with or without a byte-order
+Same rules as a CSV edge list (:mod:`roles.io.load`): UTF-8 with or without a byte-order
 mark, or UTF-16/UTF-32 with one; no binary data or control characters; a name may be
 quoted (``"Berg, Anna"``); spaces around a name are dropped; blank lines are skipped.
 """
@@ -11,7 +11,7 @@ import csv
 import io
 from pathlib import Path
 
-from .errors import InputError
+from ..errors import InputError
 from .load import MAX_TEXT_BYTES, _check_file, _decode, _name_problem, _read_bytes, _show
 
 __all__ = ["read_names"]

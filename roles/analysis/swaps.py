@@ -42,7 +42,7 @@ __all__ = ["Swapped", "double_edge_swap", "edges_to_csr_arrays"]
 
 # The walk kernel's generator (SplitMix64 [4], Lemire's bounded integers [5]); the
 # lowest of its spare bits picks a tie's orientation.
-from .walks.kernel import _below, _mix  # noqa: E402
+from ..embedding.walks.kernel import _below, _mix  # noqa: E402
 
 _ONE = np.uint64(1)
 _EMPTY = -1
@@ -249,7 +249,7 @@ def edges_to_csr_arrays(
     """``(indptr, indices)`` of the undirected network with ties ``u[e]-v[e]``.
 
     Each tie is stored in both rows, rows sorted by neighbour, as
-    :func:`roles.graph.to_csr` stores an undirected graph (``indptr`` int64, ``indices``
+    :func:`roles.embedding.graph.to_csr` stores an undirected graph (``indptr`` int64, ``indices``
     int32). Ties must not be self-loops (they would be stored twice).
     """
     return _csr_kernel(

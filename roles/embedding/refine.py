@@ -21,7 +21,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .modularity import local_moves
+from ..analysis.modularity import local_moves
 
 __all__ = ["refine"]
 
@@ -42,7 +42,7 @@ def refine(
         Number of members (rows of ``labels``).
     ties : tuple of ndarray
         ``(rows, columns, weights)`` of the symmetric adjacency matrix, each undirected
-        tie once in each direction (:func:`roles.cluster.ties_of`).
+        tie once in each direction (:func:`roles.embedding.cluster.ties_of`).
     labels : ndarray of int, shape (n,)
         The starting groups, numbered from 0.
     seed : int

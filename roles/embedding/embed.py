@@ -1,7 +1,7 @@
 """Walks -> vectors: skip-gram with negative sampling (gensim Word2Vec), two views.
 
 Each view (``local``: q > 1, ``far``: q < 1) is one node2vec run [1]_: second-order
-walks from :mod:`roles.walks`, then skip-gram with negative sampling [2]_ trained by
+walks from :mod:`roles.embedding.walks`, then skip-gram with negative sampling [2]_ trained by
 gensim [3]_ with one worker thread, so the result depends on the seed only. The two
 views run side by side in two processes.
 
@@ -33,10 +33,10 @@ from typing import Any
 
 import numpy as np
 
-from .config import Config, EmbeddingConfig, ViewConfig, WalkConfig
+from ..config import Config, EmbeddingConfig, ViewConfig, WalkConfig
+from ..workers import worker_pool
 from .graph import CSRGraph
 from .walks import generate_walks, visit_counts, walk_lengths
-from .workers import worker_pool
 
 __all__ = [
     "Embedding",
@@ -175,7 +175,7 @@ def embed_walks(
     Parameters
     ----------
     walks : ndarray of int32, shape (n_walks, walk_length)
-        Node indices, ``-1`` after a walk's end (as :func:`roles.walks.generate_walks`).
+        Node indices, ``-1`` after a walk's end (as :func:`roles.embedding.walks.generate_walks`).
     n_nodes : int
         Number of nodes; the result has one row per node, in index order.
     dimensions, window, epochs, negative : int

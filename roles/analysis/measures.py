@@ -28,7 +28,7 @@ import numba
 import numpy as np
 import pandas as pd
 
-from .errors import InputError
+from ..errors import InputError
 
 __all__ = [
     "BetweennessInfo",

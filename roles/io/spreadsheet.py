@@ -2,7 +2,7 @@
 
 Written with XlsxWriter, row by row (its ``constant_memory`` mode), so a large network
 needs no second copy of the table. Numbers are stored as numbers; every text cell goes
-through :func:`roles.output.safe_cell`, the rule nodes.csv uses, so a name that looks
+through :func:`roles.io.output.safe_cell`, the rule nodes.csv uses, so a name that looks
 like a formula stays text in both files, character for character.
 
 References
@@ -17,8 +17,8 @@ from collections.abc import Iterable, Sequence
 from pathlib import Path
 from typing import Any
 
+from ..pipeline import Result
 from .output import safe_cell
-from .pipeline import Result
 
 __all__ = ["write_nodes_xlsx", "community_rows"]
 

@@ -48,7 +48,7 @@ from __future__ import annotations
 
 import dataclasses
 
-from .config import Config
+from ..config import Config
 
 __all__ = [
     "walk_budget",

@@ -17,7 +17,7 @@ stop when a level gains at most ``threshold``), and measures the same modularity
 pure-Python version takes about a minute (``benchmarks/bench_modularity.py``).
 
 Directed networks are read as undirected here (as the walks read them when they go
-both ways): pass :func:`roles.graph.to_csr` of ``graph.to_undirected(as_view=True)``.
+both ways): pass :func:`roles.embedding.graph.to_csr` of ``graph.to_undirected(as_view=True)``.
 
 References
 ----------
@@ -35,7 +35,7 @@ from __future__ import annotations
 import numba
 import numpy as np
 
-from .graph import CSRGraph
+from ..embedding.graph import CSRGraph
 
 __all__ = ["modularity", "louvain"]
 
@@ -43,7 +43,7 @@ __all__ = ["modularity", "louvain"]
 def _symmetric_arrays(csr: CSRGraph) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Row pointers, columns and float64 weights of the symmetric adjacency matrix.
 
-    :func:`roles.graph.to_csr` stores an undirected tie in both rows and a self-loop
+    :func:`roles.embedding.graph.to_csr` stores an undirected tie in both rows and a self-loop
     once; the matrix convention of the formula counts a self-loop twice on the
     diagonal (so that a row sums to the node's strength, as networkx's degree does).
     """
@@ -85,7 +85,7 @@ def local_moves(indptr, indices, weights, order, comm, resolution, max_passes): 
     """Local moving (the first phase of Louvain): each node, in ``order``, joins the
     neighbouring community with the highest modularity gain, until a pass moves nobody
     or ``max_passes`` passes. ``comm`` (labels from 0) is changed in place and returned.
-    Shared by :func:`louvain` (from single nodes) and :func:`roles.refine.refine`."""
+    Shared by :func:`louvain` (from single nodes) and :func:`roles.embedding.refine.refine`."""
     n = indptr.shape[0] - 1
     strength = np.zeros(n)
     for i in range(n):

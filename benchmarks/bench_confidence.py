@@ -194,19 +194,19 @@ def _rerun_grouping_after(csr, config: Config, idx: np.ndarray) -> dict[str, np.
     """A re-run with both views grouped in the parent after embedding (the old way)."""
     from roles.embedding.cluster import cluster
     from roles.embedding.embed import embed_views
-    from roles.pipeline import stage_seeds
+    from roles.seeds import StageSeeds
 
-    seeds = stage_seeds(config.seed)
+    seeds = StageSeeds.of(config.seed).view_groups
     embeddings = embed_views(csr, config)
     return {
         view: cluster(
             np.asarray(embeddings[view].vectors)[idx],
             min_cluster_size=config.cluster.min_cluster_size,
             reduce_to=config.cluster.reduce_to,
-            seed=seeds[2 + i],
+            seed=seeds[view],
             fit_limit=config.cluster.fit_limit or None,
         ).labels
-        for i, view in enumerate(("local", "far"))
+        for view in ("local", "far")
     }
 
 

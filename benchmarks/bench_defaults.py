@@ -48,7 +48,8 @@ from roles.config import Config
 from roles.embedding.cluster import cluster
 from roles.embedding.embed import embed_views
 from roles.embedding.graph import to_csr
-from roles.pipeline import choose_community_view, stage_seeds
+from roles.pipeline import choose_community_view
+from roles.seeds import StageSeeds
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 from bench_views import lfr  # noqa: E402  (the same LFR graphs as bench_views.py)
@@ -117,14 +118,14 @@ def evaluate(config: Config, graphs: list[tuple[float, int, nx.Graph, np.ndarray
         run_config = dataclasses.replace(config, seed=seed)
         c0 = time.process_time()
         views = embed_views(to_csr(graph), run_config, processes=1)
-        seeds = stage_seeds(run_config.seed)
+        seeds = StageSeeds.of(run_config.seed).view_groups
         labels, modularity = {}, {}
-        for i, view in enumerate(("local", "far")):
+        for view in ("local", "far"):
             grouping = cluster(
                 np.asarray(views[view].vectors),
                 min_cluster_size=config.cluster.min_cluster_size,
                 reduce_to=config.cluster.reduce_to,
-                seed=seeds[2 + i],
+                seed=seeds[view],
             )
             labels[view] = grouping.labels
             groups[view].append(grouping.n_groups)

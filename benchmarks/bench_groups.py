@@ -53,7 +53,8 @@ from roles.embedding.budget import walk_budget
 from roles.embedding.cluster import cluster, ties_of
 from roles.embedding.embed import embed_views
 from roles.embedding.graph import to_csr
-from roles.pipeline import choose_community_view, stage_seeds
+from roles.pipeline import choose_community_view
+from roles.seeds import StageSeeds
 
 MIXING = (0.1, 0.2, 0.3, 0.4, 0.5)
 
@@ -193,7 +194,7 @@ def part_small(before: bool) -> None:
             labels = r.nodes["community"].to_numpy()
             if truth is not None:
                 ours.append(nmi(truth, labels))
-                lv = louvain(to_csr(r.graph), seed=stage_seeds(seed)[5])
+                lv = louvain(to_csr(r.graph), seed=StageSeeds.of(seed).louvain)
                 theirs.append(nmi(truth, lv))
             if name.startswith("karate"):
                 faction = {str(v): g.nodes[v]["club"] for v in g}

@@ -341,7 +341,7 @@ def part_stages(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
     from roles.embedding.embed import embed_walks
     from roles.embedding.graph import to_csr
     from roles.embedding.walks import generate_walks, walk_lengths
-    from roles.pipeline import stage_seeds
+    from roles.seeds import StageSeeds
 
     meter = _Meter()
     t0 = time.perf_counter()
@@ -349,7 +349,7 @@ def part_stages(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
     graph = nx.relabel_nodes(graph, {v: str(v) for v in graph}, copy=True)
     generated = round(time.perf_counter() - t0, 1)
     config, note = _config(graph.number_of_nodes(), graph.number_of_edges(), budget)
-    seeds = stage_seeds(config.seed)
+    seeds = StageSeeds.of(config.seed)
     with meter.stage("CSR arrays"):
         csr = to_csr(graph)
     with meter.stage("walk kernel load"):  # numba's disk cache, or a compile
@@ -358,7 +358,7 @@ def part_stages(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
         import gensim.models  # noqa: F401
         import hdbscan  # noqa: F401
     walks: dict[str, np.ndarray] = {}
-    for i, (view, vc) in enumerate(config.views.items()):
+    for view, vc in config.views.items():
         with meter.stage(f"walks {view}", p=vc.p, q=vc.q) as row:
             walks[view] = generate_walks(
                 csr,
@@ -366,14 +366,14 @@ def part_stages(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
                 walk_length=config.walks.walk_length,
                 p=vc.p,
                 q=vc.q,
-                seed=seeds[i],
+                seed=seeds.view_walks[view][0],
             )
         steps = int(np.maximum(walk_lengths(walks[view]) - 1, 0).sum())
         row["steps"] = steps
         row["steps_per_s_per_core"] = round(steps / max(row["wall_s"], 1e-9))
     vectors: dict[str, np.ndarray] = {}
     emb = config.embedding
-    for i, view in enumerate(config.views):
+    for view in config.views:
         with meter.stage(f"skip-gram {view}") as row:
             vectors[view] = embed_walks(
                 walks[view],
@@ -382,7 +382,7 @@ def part_stages(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
                 window=emb.window,
                 epochs=emb.epochs,
                 negative=emb.negative,
-                seed=seeds[6 + i],
+                seed=seeds.view_walks[view][1],
             )
         lengths = walk_lengths(walks[view])
         tokens = int(lengths[lengths >= 2].sum()) * emb.epochs
@@ -390,13 +390,13 @@ def part_stages(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
         row["tokens_per_s"] = round(tokens / max(row["wall_s"], 1e-9))
     del walks
     groupings = {}
-    for i, view in enumerate(config.views):
+    for view in config.views:
         with meter.stage(f"clustering {view}") as row:
             groupings[view] = cluster(
                 vectors[view],
                 min_cluster_size=config.cluster.min_cluster_size,
                 reduce_to=config.cluster.reduce_to,
-                seed=seeds[2 + i],
+                seed=seeds.view_groups[view],
                 fit_limit=config.cluster.fit_limit or None,
             )
         g = groupings[view]

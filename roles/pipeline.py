@@ -6,7 +6,6 @@ The stages only read what earlier stages returned; the report reads the
 
 from __future__ import annotations
 
-import functools
 import platform
 import time
 from collections.abc import Callable, Iterator, Mapping, Sequence
@@ -18,14 +17,16 @@ import networkx as nx
 import numpy as np
 import pandas as pd
 
-from .analysis.compare import Comparison, compare_views, nearest_neighbours, neighbour_count
+from .analysis.compare import Comparison, compare_views, neighbour_count
 from .analysis.modularity import louvain, modularity
 from .config import Config
-from .embedding.cluster import Grouping, Ties, cluster, ties_of
+from .embedding.cluster import Grouping
 from .embedding.graph import to_csr
 from .errors import InputError
+from .plan import ViewWork, budget, network_ties, view_grouper
+from .seeds import StageSeeds
 
-__all__ = ["Result", "run", "choose_community_view", "stage_seeds"]
+__all__ = ["Result", "run", "choose_community_view"]
 
 #: Directed walks shorter than this share of the walk length (on average) are too
 #: short to group anyone; the views then walk the ties in both directions.
@@ -88,14 +89,6 @@ class Result:
     extras: dict[str, Any] = field(default_factory=dict)
 
 
-def stage_seeds(seed: int, n: int = 8) -> list[int]:
-    """Independent 32-bit seeds for the stages, all derived from the one user seed.
-
-    Children 0 and 1 are the local and far walks (see :func:`roles.embedding.embed.embed_views`).
-    """
-    return [int(c.generate_state(1)[0]) for c in np.random.SeedSequence(seed).spawn(n)]
-
-
 class _Timer:
     def __init__(self, progress: Progress | None) -> None:
         self.timings: dict[str, float] = {}
@@ -139,67 +132,6 @@ def _versions() -> dict[str, str]:
     return out
 
 
-#: Above these sizes the confidence checks are cut back unless [confidence]
-#: scale_down = false: one re-run costs as much as the whole embedding (about 16 s at
-#: 10,000 members, 24 s at 20,000); the structure test with all 20 randomisations takes
-#: 19 s wall at 1,000,000 ties on two threads (compiled swaps and Louvain,
-#: benchmarks/bench_confidence.py).
-RERUNS_FULL_NODES = 5_000
-RERUNS_ONE_NODES = 10_000
-STRUCTURE_MAX_TIES = 1_000_000
-
-
-def confidence_budget(
-    n_tied: int, n_ties: int, runs: int, randomisations: int, scale_down: bool
-) -> tuple[int, int, str | None]:
-    """Re-runs and randomisations to spend, and a note when fewer than asked."""
-    if not scale_down:
-        return runs, randomisations, None
-    notes = []
-    used_runs = runs
-    if n_tied > RERUNS_ONE_NODES:
-        used_runs = 0
-    elif n_tied > RERUNS_FULL_NODES:
-        used_runs = min(runs, 1)
-    if used_runs < runs:
-        notes.append(
-            f"{used_runs} of {runs} re-runs with other seeds ({n_tied:,} members with ties; "
-            f"all re-runs up to {RERUNS_FULL_NODES:,}, one up to {RERUNS_ONE_NODES:,}, none "
-            "beyond)"
-        )
-    used_rand = randomisations if n_ties <= STRUCTURE_MAX_TIES else 0
-    if used_rand < randomisations:
-        notes.append(
-            f"no structure test ({n_ties:,} ties; it runs up to {STRUCTURE_MAX_TIES:,} ties)"
-        )
-    if not notes:
-        return runs, randomisations, None
-    return (
-        used_runs,
-        used_rand,
-        (
-            "To keep the run affordable: "
-            + "; ".join(notes)
-            + ". Set scale_down = false under [confidence] to spend the full budget."
-        ),
-    )
-
-
-def _sampled_fit_note(groupings: Mapping[str, Grouping], n_rows: int) -> str | None:
-    """A sentence for the report when HDBSCAN saw only a sample of the members."""
-    fitted = {g.fitted for g in groupings.values() if 0 < g.fitted < n_rows}
-    if not fitted:
-        return None
-    return (
-        f"The groups were found among {max(fitted):,} randomly chosen members of the "
-        f"{n_rows:,} with ties; every other member joined the group of its nearest chosen "
-        "members. On test networks of 20,000 and 50,000 members with planted communities "
-        "this found the communities as well as using everyone, in a quarter to a half of "
-        "the time. To use everyone, set fit_limit = 0 in the [cluster] section of a "
-        "configuration file."
-    )
-
-
 def _round(x: float) -> float | None:
     return round(float(x), 4) if np.isfinite(x) else None
 
@@ -211,91 +143,7 @@ def _betweenness_info(table: pd.DataFrame) -> dict[str, Any]:
     return dataclasses.asdict(info) if info is not None else {}
 
 
-@dataclass(frozen=True, eq=False)
-class _ViewWork:
-    """What the process of one view hands back besides its vectors."""
-
-    grouping: Grouping
-    neighbours: np.ndarray | None
-    seconds: dict[str, float]
-
-
-def _group_view(
-    view: str,
-    embedding: Any,
-    *,
-    idx: np.ndarray,
-    seeds: Mapping[str, int],
-    min_cluster_size: int,
-    reduce_to: int,
-    fit_limit: int | None,
-    k: int,
-    ties: Ties | None = None,
-) -> _ViewWork:
-    """Group one view's connected members and find their nearest neighbours.
-
-    Runs in the process that computed the view (:func:`roles.embedding.embed.embed_views_then`).
-    """
-    x = np.asarray(embedding.vectors)[idx]
-    seconds = {}
-    start = time.perf_counter()
-    grouping = cluster(
-        x,
-        min_cluster_size=min_cluster_size,
-        reduce_to=reduce_to,
-        seed=seeds[view],
-        fit_limit=fit_limit,
-        ties=ties,
-    )
-    seconds["clustering"] = round(time.perf_counter() - start, 3)
-    start = time.perf_counter()
-    neighbours = nearest_neighbours(x, k) if k else None
-    seconds["neighbours"] = round(time.perf_counter() - start, 3)
-    return _ViewWork(grouping, neighbours, seconds)
-
-
-def network_ties(csr: Any, idx: np.ndarray) -> Ties:
-    """The ties among the members ``idx``, read as undirected (as modularity reads them),
-    in the form :func:`roles.embedding.cluster.cluster` takes them.
-
-    A directed network's tie in either direction counts once (the larger weight when
-    both directions are given).
-    """
-    if not csr.directed:
-        return ties_of(csr.indptr, csr.indices, csr.weights, idx)
-    import scipy.sparse as sp
-
-    a = sp.csr_matrix((csr.weights, csr.indices, csr.indptr), shape=(csr.n_nodes,) * 2)
-    both = a.maximum(a.T).tocsr()
-    both.sort_indices()
-    return ties_of(both.indptr, both.indices, both.data, idx)
-
-
-def view_grouper(
-    config: Config, idx: np.ndarray, k: int, ties: Ties | None = None
-) -> Callable[[str, Any], _ViewWork]:
-    """The work each view's process does after its embedding, as :func:`run` does it:
-    group the members ``idx`` with ``config.cluster``, the network's ``ties`` among
-    them (:func:`network_ties`) and the stage seeds of ``config.seed``, then (when
-    ``k`` > 0) find each member's ``k`` nearest neighbours.
-
-    The confidence re-runs (:mod:`roles.analysis.confidence`) group with it too, so a re-run
-    differs from the run only in its seed.
-    """
-    seeds = stage_seeds(config.seed)
-    return functools.partial(
-        _group_view,
-        idx=idx,
-        seeds={"local": seeds[2], "far": seeds[3]},
-        min_cluster_size=config.cluster.min_cluster_size,
-        reduce_to=config.cluster.reduce_to,
-        fit_limit=config.cluster.fit_limit or None,
-        k=k,
-        ties=ties,
-    )
-
-
-def _neighbour_lists(work: Mapping[str, _ViewWork]) -> tuple[np.ndarray, np.ndarray]:
+def _neighbour_lists(work: Mapping[str, ViewWork]) -> tuple[np.ndarray, np.ndarray]:
     local, far = work["local"].neighbours, work["far"].neighbours
     assert local is not None and far is not None  # searched whenever k > 0
     return local, far
@@ -396,7 +244,7 @@ def run(
         from .analysis.whatif import check_members
 
         remove = check_members(graph, [str(v) for v in remove])  # before any work
-    seeds = stage_seeds(config.seed)
+    seeds = StageSeeds.of(config.seed)
     timer = _Timer(progress)
     names = [str(n) for n in graph.nodes()]
     n = len(names)
@@ -407,11 +255,9 @@ def run(
         connected = np.asarray(degree > 0)
         isolated = [names[i] for i in np.flatnonzero(~connected)]
 
-    from .embedding.budget import walk_budget
-
-    config, walk_note = walk_budget(n, graph.number_of_edges(), config)  # user's walks kept
-
     idx = np.flatnonzero(connected)
+    spend = budget(n, len(idx), graph.number_of_edges(), config)
+    config = spend.config
     k = neighbour_count(len(idx)) if len(idx) >= 3 else 0
     # Modularity reads ties as undirected (Newman 2006), as the walks do when they go
     # both ways.
@@ -424,7 +270,7 @@ def run(
             # which leaves too little context to group anyone: then walk the ties both
             # ways for the views (dependents still follow the direction). One trial
             # walk per member and view tells, before any training is spent.
-            steps = _trial_steps(csr, config, seeds[7])
+            steps = _trial_steps(csr, config, seeds.trial_walks)
             if steps < SHORT_WALKS * (config.walks.walk_length - 1):
                 walk_csr = tie_csr
                 walk_basis = (
@@ -435,9 +281,9 @@ def run(
         # The groups are chosen with the ties the walks followed, read as undirected
         # (roles.embedding.cluster); the confidence re-runs do the same.
         group_view = view_grouper(config, idx, k, network_ties(walk_csr, idx))
-        views = embed_views_then(walk_csr, config, group_view)
+        views = embed_views_then(walk_csr, config, group_view, seeds=seeds.view_walks)
     vectors = {view: np.asarray(e.vectors) for view, (e, _) in views.items()}
-    work: dict[str, _ViewWork] = {view: w for view, (_, w) in views.items()}
+    work: dict[str, ViewWork] = {view: w for view, (_, w) in views.items()}
     groupings: dict[str, Grouping] = {view: w.grouping for view, w in work.items()}
 
     # Group labels per node: 1-based by size; 0 for members with no ties.
@@ -447,7 +293,6 @@ def run(
         return out
 
     view_labels = {view: full(g.labels) for view, g in groupings.items()}
-    cluster_note = _sampled_fit_note(groupings, len(idx))
     view_modularity = {
         view: modularity(tie_csr, labels) if groupings[view].n_groups > 0 else float("nan")
         for view, labels in view_labels.items()
@@ -459,7 +304,7 @@ def run(
     community_of = dict(zip(names, communities.tolist(), strict=True))
 
     with timer.stage("roles and measures"):
-        table = role_table(graph, community_of, seed=seeds[4])
+        table = role_table(graph, community_of, seed=seeds.roles)
 
     with timer.stage("comparison"):
         comparison = None
@@ -476,14 +321,7 @@ def run(
             overlap[idx] = comparison.overlap
 
     confidence = None
-    runs, randomisations, confidence_note = confidence_budget(
-        len(idx),
-        graph.number_of_edges(),
-        config.confidence.runs,
-        config.confidence.randomisations,
-        config.confidence.scale_down,
-    )
-    if runs > 0 or randomisations > 0:
+    if spend.reruns > 0 or spend.randomisations > 0:
         from .analysis.confidence import assess
 
         with timer.stage("confidence"):
@@ -495,13 +333,13 @@ def run(
                 community_view,
                 view_labels["local"],
                 view_labels["far"],
-                runs=runs,
-                randomisations=randomisations,
-                seed=seeds[6],
+                runs=spend.reruns,
+                randomisations=spend.randomisations,
+                seed=seeds.confidence,
             )
 
     with timer.stage("modularity check"):
-        louvain_labels = louvain(tie_csr, seed=seeds[5])
+        louvain_labels = louvain(tie_csr, seed=seeds.louvain)
         from sklearn.metrics import normalized_mutual_info_score
 
         louvain_nmi = float(normalized_mutual_info_score(louvain_labels[idx], communities[idx]))
@@ -589,7 +427,7 @@ def run(
             dependents=dict(zip(names, nodes["dependents"], strict=True)),
             bridges=bridges,
             remove=remove,
-            seed=stage_seeds(config.seed, 9)[8],
+            seed=seeds.what_if,
         )
     n_comm = int(communities.max())
     summary: dict[str, Any] = {
@@ -629,9 +467,9 @@ def run(
             "nmi_with_louvain": round(louvain_nmi, 4),
         },
         "betweenness": _betweenness_info(table),
-        "confidence_budget": confidence_note,
-        "walk_budget": walk_note,
-        "cluster_budget": cluster_note,
+        "confidence_budget": spend.confidence_note,
+        "walk_budget": spend.walk_note,
+        "cluster_budget": spend.cluster_note,
         "parameters": {**config.as_dict(), "directed": graph.is_directed()},
         "input": dict(source or {}),
         "versions": _versions(),

@@ -236,11 +236,9 @@ def test_structure_budget_rule():
     assert confidence.structure_budget(10_000, 20)[:2] == (20, 10.0)
     assert confidence.structure_budget(20_000, 20)[:2] == (20, 3.0)
     assert confidence.structure_budget(1_000_000, 20)[:2] == (20, 3.0)
-    assert confidence.structure_budget(1_250_000, 20)[:2] == (16, 3.0)
-    assert confidence.structure_budget(5_000_000, 20)[:2] == (10, 3.0)
-    assert confidence.structure_budget(5_000_000, 3)[:2] == (3, 3.0)
-    assert "reduced from 20" in confidence.structure_budget(5_000_000, 20)[2]
-    assert "reduced" not in confidence.structure_budget(1_000_000, 20)[2]
+    # Every randomisation asked for is made: how many a network affords is the run
+    # recipe's decision (roles.plan.budget, tested in test_plan.py), not a second rule.
+    assert confidence.structure_budget(5_000_000, 20)[:2] == (20, 3.0)
 
 
 # --------------------------------------------------------------------------------------
@@ -337,14 +335,6 @@ def test_members_without_ties_get_no_confidence(monkeypatch):
                               seed=0)  # fmt: skip
     assert np.isnan(st.confidence[-1]) and np.all(st.confidence[:-1] == 1.0)
     assert set(st.communities) == {1, 2}
-
-
-def test_stability_budget_rule():
-    # Our own rule (common practice, measured in benchmarks/bench_confidence.py).
-    assert confidence.stability_budget(20_000, 5)[0] == 5
-    assert confidence.stability_budget(50_000, 5)[0] == 3
-    assert confidence.stability_budget(500_000, 5)[0] == 2
-    assert confidence.stability_budget(500_000, 1)[0] == 1
 
 
 # --------------------------------------------------------------------------------------

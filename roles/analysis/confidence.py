@@ -52,6 +52,8 @@ import numpy as np
 
 from ..config import Config
 from ..embedding.graph import CSRGraph
+from ..plan import rerun_groups
+from ..seeds import seed_list
 from ..workers import worker_pool
 from .modularity import louvain, modularity
 from .swaps import Swapped, double_edge_swap, edges_to_csr_arrays
@@ -65,7 +67,6 @@ __all__ = [
     "stability",
     "assess",
     "structure_budget",
-    "stability_budget",
     "Z_MIN",
     "NULL_QUANTILE",
     "STABLE_JACCARD",
@@ -88,21 +89,13 @@ STABLE_JACCARD = 0.75
 PATTERN_JACCARD = 0.6
 
 # Budget of the structure test (see structure_budget and benchmarks/bench_confidence.py).
-_FULL_TEST_EDGES = 1_000_000
 _FULL_SWAPS_EDGES = 10_000
 _SWAPS_PER_EDGE = 10.0
 _SWAPS_PER_EDGE_LARGE = 3.0
-_MIN_RANDOMISATIONS_LARGE = 10
 
 # Below this many walk steps per re-run, starting worker processes (about 2 s each,
 # mostly imports) costs more than it saves; see benchmarks/bench_confidence.py.
 _PARALLEL_MIN_TOKENS = 500_000
-
-# Budget of the stability check (see stability_budget).
-_FULL_RUNS_NODES = 20_000
-_LARGE_RUNS_NODES = 100_000
-_MAX_RUNS_MEDIUM = 3
-_MAX_RUNS_LARGE = 2
 
 _VIEWS = ("local", "far")
 
@@ -137,12 +130,6 @@ def _spread(values: Sequence[float]) -> dict[str, Any]:
         "max": _num(a.max()),
         "values": [_num(v) for v in a],
     }
-
-
-def _child_seeds(seed: int, n: int, *, avoid: int | None = None) -> list[int]:
-    """``n`` 32-bit seeds from ``SeedSequence(seed)``, skipping ``avoid``."""
-    values = [int(c.generate_state(1)[0]) for c in np.random.SeedSequence(seed).spawn(n + 1)]
-    return [v for v in values if v != avoid][:n]
 
 
 # --------------------------------------------------------------------------------------
@@ -251,12 +238,12 @@ class StructureTest:
 
 
 def structure_budget(edges: int, randomisations: int) -> tuple[int, float, str]:
-    """Randomisations and swaps per tie the structure test spends on ``edges`` ties.
+    """Swaps per tie the structure test spends on ``edges`` ties, and its note.
 
-    Swaps: 10 per tie up to 10,000 ties, 3 per tie beyond. Randomisations: every one
-    asked for up to 1,000,000 ties (the largest networks the tool is measured on);
-    beyond, ``randomisations * 1,000,000 / edges``, but at least 10, and never more than
-    asked for.
+    Swaps: 10 per tie up to 10,000 ties, 3 per tie beyond. Every randomisation asked
+    for is made: how many a network's size affords is decided with the run's other size
+    limits (:func:`roles.plan.budget`: no structure test beyond 1,000,000 ties unless
+    ``scale_down = false``).
 
     The best modularity found in randomised networks settles after one to two swaps per
     tie (planted-partition networks of 10,000 and 200,000 ties: the same mean from 1 to
@@ -266,9 +253,8 @@ def structure_budget(edges: int, randomisations: int) -> tuple[int, float, str]:
     whole test with 20 randomisations on two threads takes 0.1 s wall at 10,000 ties,
     2.4 s at 200,000 and 19 s (36 CPU seconds) at 1,000,000; networkx's swaps and
     Louvain took 0.9 and 10 CPU seconds per randomisation at 10,000 and 200,000 ties
-    (``benchmarks/bench_confidence.py``). Keeping every randomisation keeps the
-    empirical p-value's floor at ``1 / (randomisations + 1)``; beyond a million ties the
-    cost grows with the ties and the randomisations are thinned.
+    (``benchmarks/bench_confidence.py``). The empirical p-value's floor is
+    ``1 / (randomisations + 1)``.
 
     Returns
     -------
@@ -277,18 +263,7 @@ def structure_budget(edges: int, randomisations: int) -> tuple[int, float, str]:
     if randomisations < 0:
         raise ValueError(f"randomisations must be >= 0; got {randomisations}")
     spe = _SWAPS_PER_EDGE if edges <= _FULL_SWAPS_EDGES else _SWAPS_PER_EDGE_LARGE
-    used = randomisations
-    floor = _MIN_RANDOMISATIONS_LARGE
-    if edges > _FULL_TEST_EDGES:
-        scaled = int(randomisations * _FULL_TEST_EDGES // edges)
-        used = min(randomisations, max(floor, scaled))
-    note = f"{used} randomised networks, {spe:g} swaps per tie"
-    if used < randomisations:
-        note += (
-            f" (reduced from {randomisations} because the network has {edges:,} ties; rule: "
-            f"{randomisations} x {_FULL_TEST_EDGES:,} / ties, at least {floor})"
-        )
-    return used, spe, note
+    return randomisations, spe, f"{randomisations} randomised networks, {spe:g} swaps per tie"
 
 
 def _test_arrays(graph: nx.Graph) -> tuple[list, np.ndarray, np.ndarray]:
@@ -698,36 +673,6 @@ class Stability:
         }
 
 
-def stability_budget(n_nodes: int, runs: int) -> tuple[int, str]:
-    """Re-runs the stability check spends on a network of ``n_nodes`` members with ties.
-
-    Every re-run asked for up to 20,000 members; at most 3 up to 100,000; at most 2
-    beyond. One re-run costs as much as the embedding and clustering of the main run
-    (see ``benchmarks/bench_confidence.py``); two re-runs are the fewest that still show
-    a seed-to-seed spread.
-
-    Returns
-    -------
-    (runs, note)
-    """
-    if runs < 0:
-        raise ValueError(f"runs must be >= 0; got {runs}")
-    if n_nodes <= _FULL_RUNS_NODES:
-        used = runs
-    elif n_nodes <= _LARGE_RUNS_NODES:
-        used = min(runs, _MAX_RUNS_MEDIUM)
-    else:
-        used = min(runs, _MAX_RUNS_LARGE)
-    note = f"{used} re-runs with other seeds, one after the other"
-    if used < runs:
-        note += (
-            f" (reduced from {runs} because the network has {n_nodes:,} members with ties; "
-            f"rule: all re-runs up to {_FULL_RUNS_NODES:,}, at most {_MAX_RUNS_MEDIUM} up to "
-            f"{_LARGE_RUNS_NODES:,}, at most {_MAX_RUNS_LARGE} beyond)"
-        )
-    return used, note
-
-
 def _connected(csr: CSRGraph) -> np.ndarray:
     """Nodes with at least one tie, as the pipeline counts them."""
     degree = csr.out_degree()
@@ -739,13 +684,9 @@ def _connected(csr: CSRGraph) -> np.ndarray:
 def _rerun(
     csr: CSRGraph, config: Config, idx: np.ndarray, processes: int | None = None
 ) -> dict[str, np.ndarray]:
-    """Both views' group labels over ``idx``, made exactly as the pipeline makes them."""
-    from ..embedding.embed import embed_views_then
-    from ..pipeline import network_ties, view_grouper
-
-    group = view_grouper(config, idx, 0, network_ties(csr, idx))
-    done = embed_views_then(csr, config, group, processes=processes)
-    return {view: done[view][1].grouping.labels for view in _VIEWS}
+    """Both views' group labels over ``idx``, made exactly as the pipeline makes them
+    (:func:`roles.plan.rerun_groups`)."""
+    return rerun_groups(csr, config, idx, processes)
 
 
 def _reruns(
@@ -822,7 +763,8 @@ def stability(
         :func:`roles.embedding.cluster.cluster` on the members with ties, with the run's
         ``fit_limit``, seeded by :func:`roles.pipeline.stage_seeds`).
     runs : int, default 5
-        Re-runs asked for; large networks get fewer (:func:`stability_budget`).
+        Re-runs with other seeds (the pipeline spends fewer on large networks:
+        :func:`roles.plan.budget`).
     view : {"local", "far"}
         The view whose groups are checked.
     reference_labels : ndarray of int, shape (n_nodes,)
@@ -883,14 +825,17 @@ def stability(
         other_labels = np.asarray(other_labels)
         if other_labels.shape != (n,):
             raise ValueError(f"other_labels must have shape ({n},); got {other_labels.shape}")
+    if runs < 0:
+        raise ValueError(f"runs must be >= 0; got {runs}")
     idx = np.flatnonzero(_connected(csr))
-    used, note = stability_budget(len(idx), runs)
+    used = runs  # how many a network's size affords is the run recipe's (roles.plan.budget)
+    note = f"{used} re-runs with other seeds, one after the other"
     other = "far" if view == "local" else "local"
     ref = {view: reference_labels[idx]}
     if other_labels is not None:
         ref[other] = other_labels[idx]
 
-    seeds = _child_seeds(seed, used, avoid=config.seed)
+    seeds = seed_list(seed, used, avoid=config.seed)
     node_sum = np.zeros(len(idx))
     best_runs: list[np.ndarray] = []
     cross_ari: list[float] = []
@@ -1048,7 +993,7 @@ def assess(
         raise ValueError(f"community_view must be one of {_VIEWS}; got {community_view!r}")
     reference = np.asarray([communities[v] for v in graph.nodes()], dtype=np.int64)
     other = np.asarray(far_labels if community_view == "local" else local_labels)
-    structure_seed, stability_seed = _child_seeds(seed, 2)
+    structure_seed, stability_seed = seed_list(seed, 2)
     test = structure_test(graph, communities, randomisations=randomisations, seed=structure_seed)
     stab = stability(
         csr,

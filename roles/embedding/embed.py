@@ -27,13 +27,14 @@ import multiprocessing
 import os
 import tempfile
 import zlib
-from collections.abc import Callable, Iterator
+from collections.abc import Callable, Iterator, Mapping
 from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
 
 from ..config import Config, EmbeddingConfig, ViewConfig, WalkConfig
+from ..seeds import StageSeeds
 from ..workers import worker_pool
 from .graph import CSRGraph
 from .walks import generate_walks, visit_counts, walk_lengths
@@ -266,16 +267,6 @@ def embed_walks(
     return vectors
 
 
-def _view_seeds(seed: int) -> dict[str, tuple[int, int]]:
-    """(walk seed, training seed) per view, one SeedSequence child per view."""
-    children = np.random.SeedSequence(seed).spawn(2)
-    out = {}
-    for name, child in zip(("local", "far"), children, strict=True):
-        walk_seed, train_seed = child.generate_state(2, dtype=np.uint32).tolist()
-        out[name] = (int(walk_seed), int(train_seed))
-    return out
-
-
 def _isolated(csr: CSRGraph) -> int:
     out_deg = np.diff(csr.indptr)
     in_deg = np.bincount(csr.indices, minlength=csr.n_nodes)
@@ -339,6 +330,7 @@ def embed_views(
     csr: CSRGraph,
     config: Config,
     *,
+    seeds: Mapping[str, tuple[int, int]] | None = None,
     keep_walks: bool = False,
     processes: int | None = None,
 ) -> dict[str, Embedding]:
@@ -350,8 +342,11 @@ def embed_views(
         The network.
     config : Config
         ``config.local`` / ``config.far`` give p and q, ``config.walks`` and
-        ``config.embedding`` the walk and skip-gram settings. Each view's seeds come
-        from its own child of ``numpy.random.SeedSequence(config.seed)``.
+        ``config.embedding`` the walk and skip-gram settings.
+    seeds : mapping, optional
+        View name -> (walk seed, skip-gram seed); by default
+        ``StageSeeds.of(config.seed).view_walks`` (:class:`roles.seeds.StageSeeds`), as
+        in a run.
     keep_walks : bool, default False
         Keep each view's walks in :attr:`Embedding.walks`.
     processes : int, optional
@@ -378,7 +373,9 @@ def embed_views(
     .. [1] A. Grover and J. Leskovec, "node2vec: Scalable feature learning for
        networks", KDD 2016. https://doi.org/10.1145/2939672.2939754
     """
-    done = embed_views_then(csr, config, None, keep_walks=keep_walks, processes=processes)
+    done = embed_views_then(
+        csr, config, None, seeds=seeds, keep_walks=keep_walks, processes=processes
+    )
     return {name: embedding for name, (embedding, _) in done.items()}
 
 
@@ -387,6 +384,7 @@ def embed_views_then(
     config: Config,
     then: Callable[[str, Embedding], Any] | None,
     *,
+    seeds: Mapping[str, tuple[int, int]] | None = None,
     keep_walks: bool = False,
     processes: int | None = None,
 ) -> dict[str, tuple[Embedding, Any]]:
@@ -401,7 +399,7 @@ def embed_views_then(
         Called once per view with the view's name and :class:`Embedding`, in the
         process that computed it. With two processes it must be picklable (a module-level
         function, or a :func:`functools.partial` of one) and so must its result.
-    csr, config, keep_walks, processes
+    csr, config, seeds, keep_walks, processes
         As for :func:`embed_views`.
 
     Returns
@@ -410,7 +408,8 @@ def embed_views_then(
         ``{"local": (Embedding, result), "far": (Embedding, result)}``; ``result`` is
         ``None`` when ``then`` is ``None``.
     """
-    seeds = _view_seeds(config.seed)
+    if seeds is None:
+        seeds = StageSeeds.of(config.seed).view_walks
     jobs = {
         name: (csr, view, name, config.walks, config.embedding, seeds[name], keep_walks)
         for name, view in config.views.items()

@@ -16,7 +16,8 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
-from .errors import ConfigError
+from .errors import ConfigError, parameter_message
+from .errors import shown as _got
 
 __all__ = [
     "WalkConfig",
@@ -36,15 +37,6 @@ DEFAULT_SEED = 20261202
 MAX_CONFIG_BYTES = 1 << 20
 
 
-def _got(value: Any, limit: int = 60) -> str:
-    """A configuration value as quoted in a message: cut when long, never failing."""
-    try:
-        text = repr(value)
-    except RecursionError:  # a value nested too deeply to print
-        text = "a value nested too deeply to show"
-    return text if len(text) <= limit else text[:limit] + "..."
-
-
 #: Range of the node2vec return and in-out parameters p and q. The node2vec paper
 #: searched p, q in {0.25, 0.5, 1, 2, 4} (Grover & Leskovec, KDD 2016, Sec. 4.3, from
 #: memory), and the walk sampler's cost is bounded by the range: a proposal is accepted
@@ -56,16 +48,9 @@ P_Q_RANGE = (0.25, 4.0)
 
 
 def _check_int(section: str, name: str, value: Any, low: int, high: int) -> int:
-    if isinstance(value, bool) or not isinstance(value, int):
-        raise ConfigError(
-            f"The '{name}' parameter of {section} must be a whole number from {low} to {high}. "
-            f"Got {_got(value)} instead."
-        )
-    if not low <= value <= high:
-        raise ConfigError(
-            f"The '{name}' parameter of {section} must be a whole number from {low} to {high}. "
-            f"Got {_got(value)} instead."
-        )
+    if isinstance(value, bool) or not isinstance(value, int) or not low <= value <= high:
+        must = f"a whole number from {low} to {high}"
+        raise ConfigError(parameter_message(name, must, value, where=section))
     return value
 
 
@@ -74,11 +59,11 @@ def _check_walk_bias(section: str, name: str, value: Any) -> float:
     low, high = P_Q_RANGE
     ok = not isinstance(value, bool) and isinstance(value, (int, float))
     if not ok or not (math.isfinite(float(value)) and low <= float(value) <= high):
-        raise ConfigError(
-            f"The '{name}' parameter of {section} must be a number from {low:g} to {high:g} "
-            "(the range node2vec was tuned over; beyond it the walks slow down without "
-            f"limit). Got {_got(value)} instead."
+        must = (
+            f"a number from {low:g} to {high:g} (the range node2vec was tuned over; beyond "
+            "it the walks slow down without limit)"
         )
+        raise ConfigError(parameter_message(name, must, value, where=section))
     return float(value)
 
 
@@ -167,9 +152,9 @@ class ClusterConfig:
         _check_int("[cluster]", "reduce_to", self.reduce_to, 2, 256)
         _check_int("[cluster]", "fit_limit", self.fit_limit, 0, 100_000_000)
         if 0 < self.fit_limit < 100:
+            must = "0 (fit every member) or a whole number of at least 100"
             raise ConfigError(
-                "The 'fit_limit' parameter of [cluster] must be 0 (fit every member) or a "
-                f"whole number of at least 100. Got {_got(self.fit_limit)} instead."
+                parameter_message("fit_limit", must, self.fit_limit, where="[cluster]")
             )
 
 
@@ -186,8 +171,9 @@ class ConfidenceConfig:
         _check_int("[confidence]", "randomisations", self.randomisations, 0, 1000)
         if not isinstance(self.scale_down, bool):
             raise ConfigError(
-                "The 'scale_down' parameter of [confidence] must be true or false. "
-                f"Got {_got(self.scale_down)} instead."
+                parameter_message(
+                    "scale_down", "true or false", self.scale_down, where="[confidence]"
+                )
             )
 
 

@@ -11,6 +11,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..errors import parameter_error
+
 __all__ = [
     "Comparison",
     "compare_views",
@@ -131,7 +133,7 @@ def compare_views(
     if neighbours is not None:
         a, b = neighbours
         if a.shape != (n, k_used) or b.shape != (n, k_used):
-            raise ValueError(f"neighbour lists must have shape {(n, k_used)}")
+            raise parameter_error("neighbours", f"two arrays of shape {(n, k_used)}", a.shape)
         overlap = _jaccard_rows(a, b)
     else:
         overlap = neighbour_overlap(local_vectors, far_vectors, k=k)

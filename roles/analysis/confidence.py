@@ -52,6 +52,7 @@ import numpy as np
 
 from ..config import Config
 from ..embedding.graph import CSRGraph
+from ..errors import parameter_error
 from ..plan import rerun_groups
 from ..seeds import seed_list
 from ..workers import worker_pool
@@ -261,7 +262,7 @@ def structure_budget(edges: int, randomisations: int) -> tuple[int, float, str]:
     (randomisations, swaps_per_edge, note)
     """
     if randomisations < 0:
-        raise ValueError(f"randomisations must be >= 0; got {randomisations}")
+        raise parameter_error("randomisations", "a whole number of at least 0", randomisations)
     spe = _SWAPS_PER_EDGE if edges <= _FULL_SWAPS_EDGES else _SWAPS_PER_EDGE_LARGE
     return randomisations, spe, f"{randomisations} randomised networks, {spe:g} swaps per tie"
 
@@ -430,12 +431,14 @@ def structure_test(
     used, spe, note = structure_budget(m, randomisations)
     if swaps_per_edge is not None:
         if not swaps_per_edge > 0:
-            raise ValueError(f"swaps_per_edge must be > 0; got {swaps_per_edge}")
+            raise parameter_error("swaps_per_edge", "a number greater than 0", swaps_per_edge)
         spe = float(swaps_per_edge)
         note = f"{used} randomised networks, {spe:g} swaps per tie"
     missing = [x for x in nodes if x not in labels]
     if missing:
-        raise ValueError(f"labels has no community for {len(missing)} nodes, e.g. {missing[0]!r}")
+        raise parameter_error(
+            "labels", f"a community for every node ({len(missing)} missing)", missing[0]
+        )
 
     nan = float("nan")
     if n < 4 or m < 2:
@@ -816,17 +819,19 @@ def stability(
 
     start = time.perf_counter()
     if view not in _VIEWS:
-        raise ValueError(f"view must be one of {_VIEWS}; got {view!r}")
+        raise parameter_error("view", "'local' or 'far'", view)
     n = csr.n_nodes
     reference_labels = np.asarray(reference_labels)
     if reference_labels.shape != (n,):
-        raise ValueError(f"reference_labels must have shape ({n},); got {reference_labels.shape}")
+        raise parameter_error(
+            "reference_labels", f"an array of shape ({n},)", reference_labels.shape
+        )
     if other_labels is not None:
         other_labels = np.asarray(other_labels)
         if other_labels.shape != (n,):
-            raise ValueError(f"other_labels must have shape ({n},); got {other_labels.shape}")
+            raise parameter_error("other_labels", f"an array of shape ({n},)", other_labels.shape)
     if runs < 0:
-        raise ValueError(f"runs must be >= 0; got {runs}")
+        raise parameter_error("runs", "a whole number of at least 0", runs)
     idx = np.flatnonzero(_connected(csr))
     used = runs  # how many a network's size affords is the run recipe's (roles.plan.budget)
     note = f"{used} re-runs with other seeds, one after the other"
@@ -988,9 +993,9 @@ def assess(
     """
     names = tuple(str(v) for v in graph.nodes())
     if tuple(csr.names) != names:
-        raise ValueError("csr must be to_csr(graph): its node order differs from the graph's")
+        raise parameter_error("csr", "to_csr(graph), in the graph's node order", csr.names[:3])
     if community_view not in _VIEWS:
-        raise ValueError(f"community_view must be one of {_VIEWS}; got {community_view!r}")
+        raise parameter_error("community_view", "'local' or 'far'", community_view)
     reference = np.asarray([communities[v] for v in graph.nodes()], dtype=np.int64)
     other = np.asarray(far_labels if community_view == "local" else local_labels)
     structure_seed, stability_seed = seed_list(seed, 2)

@@ -36,6 +36,7 @@ import numba
 import numpy as np
 
 from ..embedding.graph import CSRGraph
+from ..errors import parameter_error
 
 __all__ = ["modularity", "louvain"]
 
@@ -48,7 +49,9 @@ def _symmetric_arrays(csr: CSRGraph) -> tuple[np.ndarray, np.ndarray, np.ndarray
     diagonal (so that a row sums to the node's strength, as networkx's degree does).
     """
     if csr.directed:
-        raise ValueError("modularity needs an undirected CSRGraph; see the module notes")
+        raise parameter_error(
+            "csr", "an undirected CSRGraph (see the module notes)", "a directed one"
+        )
     indptr = np.asarray(csr.indptr, dtype=np.int64)
     indices = np.asarray(csr.indices, dtype=np.int64)
     weights = np.asarray(csr.weights, dtype=np.float64).copy()
@@ -66,7 +69,9 @@ def modularity(csr: CSRGraph, labels: np.ndarray, *, resolution: float = 1.0) ->
     indptr, indices, weights = _symmetric_arrays(csr)
     labels = np.asarray(labels)
     if labels.shape != (csr.n_nodes,):
-        raise ValueError(f"labels must have one entry per node ({csr.n_nodes})")
+        raise parameter_error(
+            "labels", f"one entry per node ({csr.n_nodes})", f"{len(labels)} entries"
+        )
     _, codes = np.unique(labels, return_inverse=True)
     codes = codes.reshape(-1)
     rows = np.repeat(np.arange(csr.n_nodes, dtype=np.int64), np.diff(indptr))

@@ -34,6 +34,7 @@ from typing import Any
 import numpy as np
 
 from ..config import Config, EmbeddingConfig, ViewConfig, WalkConfig
+from ..errors import parameter_error
 from ..seeds import StageSeeds
 from ..workers import worker_pool
 from .graph import CSRGraph
@@ -211,9 +212,9 @@ def embed_walks(
     from gensim.models import Word2Vec
 
     if feed not in FEEDS:
-        raise ValueError(f"feed must be one of {FEEDS}; got {feed!r}")
+        raise parameter_error("feed", f"one of {FEEDS}", feed)
     if walks.ndim != 2:
-        raise ValueError(f"walks must be a 2-d array; got shape {walks.shape}")
+        raise parameter_error("walks", "a 2-d array", walks.shape)
     vectors = np.zeros((n_nodes, dimensions), dtype=np.float32)
     counts = visit_counts(walks, n_nodes, min_length=2)
     lengths = walk_lengths(walks)

@@ -21,7 +21,7 @@ from .analysis.compare import Comparison, compare_views, neighbour_count
 from .analysis.modularity import louvain, modularity
 from .config import Config
 from .embedding.cluster import Grouping
-from .embedding.graph import to_csr
+from .embedding.graph import CSRGraph, to_csr
 from .errors import InputError
 from .plan import ViewWork, budget, network_ties, view_grouper
 from .seeds import StageSeeds
@@ -167,6 +167,54 @@ def _trial_steps(csr: Any, config: Config, seed: int) -> float:
     return min(steps)
 
 
+def _check_inputs(
+    graph: nx.Graph, attributes: Mapping[str, Mapping[str, str]] | None, group_by: str | None
+) -> None:
+    """Refuse, before any work, a network with nothing to group or a missing group column."""
+    if graph.number_of_nodes() == 0:
+        raise InputError("the network has no nodes; give an edge list with at least one tie.")
+    if graph.number_of_edges() == 0:
+        raise InputError(
+            "the network has no ties between different members; nothing can be grouped. "
+            "Check that the edge list has rows below its header."
+        )
+    if group_by is not None:
+        columns = {c for attrs in (attributes or {}).values() for c in attrs}
+        if group_by not in columns:
+            known = ", ".join(sorted(columns)) or "none: give a nodes file with --nodes"
+            raise InputError(
+                f"there is no attribute column {group_by!r} to group by. "
+                f"Columns of the nodes file: {known}."
+            )
+        if not any(str(a.get(group_by, "")).strip() for a in (attributes or {}).values()):
+            raise InputError(
+                f"the column {group_by!r} is blank for every member, so there are no formal "
+                "groups to compare with the communities. Fill it in, or choose another column."
+            )
+
+
+def _walked_ties(
+    csr: CSRGraph, tie_csr: CSRGraph, config: Config, seed: int
+) -> tuple[CSRGraph, str]:
+    """The ties the views walk, and how the report describes them.
+
+    Walks in a supply network run downstream and stop at the last tier, which leaves too
+    little context to group anyone: then the views walk the ties both ways (dependents
+    still follow the direction). One trial walk per member and view tells, before any
+    training is spent.
+    """
+    if not csr.directed:
+        return csr, "ties"
+    steps = _trial_steps(csr, config, seed)
+    if steps >= SHORT_WALKS * (config.walks.walk_length - 1):
+        return csr, "ties followed in their direction"
+    return tie_csr, (
+        f"ties in both directions: walks that followed the direction ended "
+        f"after {steps:.1f} of {config.walks.walk_length - 1} steps on average "
+        "(one trial walk per member and view)"
+    )
+
+
 def run(
     graph: nx.Graph,
     *,
@@ -218,26 +266,7 @@ def run(
     from .embedding.embed import embed_views_then
 
     config = config or Config()
-    if graph.number_of_nodes() == 0:
-        raise InputError("the network has no nodes; give an edge list with at least one tie.")
-    if graph.number_of_edges() == 0:
-        raise InputError(
-            "the network has no ties between different members; nothing can be grouped. "
-            "Check that the edge list has rows below its header."
-        )
-    if group_by is not None:
-        columns = {c for attrs in (attributes or {}).values() for c in attrs}
-        if group_by not in columns:
-            known = ", ".join(sorted(columns)) or "none: give a nodes file with --nodes"
-            raise InputError(
-                f"there is no attribute column {group_by!r} to group by. "
-                f"Columns of the nodes file: {known}."
-            )
-        if not any(str(a.get(group_by, "")).strip() for a in (attributes or {}).values()):
-            raise InputError(
-                f"the column {group_by!r} is blank for every member, so there are no formal "
-                "groups to compare with the communities. Fill it in, or choose another column."
-            )
+    _check_inputs(graph, attributes, group_by)
     if not all(isinstance(node, str) for node in graph):
         graph = nx.relabel_nodes(graph, {n: str(n) for n in graph}, copy=True)
     if remove:
@@ -263,21 +292,7 @@ def run(
     # both ways.
     tie_csr = csr if not csr.directed else to_csr(graph.to_undirected(as_view=True))
     with timer.stage("walks, embedding and clustering"):
-        walk_csr = csr
-        walk_basis = "ties followed in their direction" if csr.directed else "ties"
-        if csr.directed:
-            # Walks in a supply network run downstream and stop at the last tier,
-            # which leaves too little context to group anyone: then walk the ties both
-            # ways for the views (dependents still follow the direction). One trial
-            # walk per member and view tells, before any training is spent.
-            steps = _trial_steps(csr, config, seeds.trial_walks)
-            if steps < SHORT_WALKS * (config.walks.walk_length - 1):
-                walk_csr = tie_csr
-                walk_basis = (
-                    f"ties in both directions: walks that followed the direction ended "
-                    f"after {steps:.1f} of {config.walks.walk_length - 1} steps on average "
-                    "(one trial walk per member and view)"
-                )
+        walk_csr, walk_basis = _walked_ties(csr, tie_csr, config, seeds.trial_walks)
         # The groups are chosen with the ties the walks followed, read as undirected
         # (roles.embedding.cluster); the confidence re-runs do the same.
         group_view = view_grouper(config, idx, k, network_ties(walk_csr, idx))

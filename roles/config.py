@@ -17,6 +17,7 @@ from pathlib import Path
 from typing import Any
 
 from .errors import ConfigError
+from .errors import quoted as _got
 
 __all__ = [
     "WalkConfig",
@@ -34,15 +35,6 @@ __all__ = [
 DEFAULT_SEED = 20261202
 #: Largest configuration file read: every setting together takes under 2 kB.
 MAX_CONFIG_BYTES = 1 << 20
-
-
-def _got(value: Any, limit: int = 60) -> str:
-    """A configuration value as quoted in a message: cut when long, never failing."""
-    try:
-        text = repr(value)
-    except RecursionError:  # a value nested too deeply to print
-        text = "a value nested too deeply to show"
-    return text if len(text) <= limit else text[:limit] + "..."
 
 
 #: Range of the node2vec return and in-out parameters p and q. The node2vec paper

@@ -6,7 +6,16 @@ the command line turns it into one ``error:`` line and exit status 2.
 
 from __future__ import annotations
 
-__all__ = ["RolesError", "InputError", "ConfigError", "Interrupted"]
+from typing import Any
+
+__all__ = [
+    "RolesError",
+    "InputError",
+    "ConfigError",
+    "Interrupted",
+    "quoted",
+    "parameter_message",
+]
 
 
 class RolesError(Exception):
@@ -44,3 +53,40 @@ class ConfigError(RolesError):
 
 class Interrupted(RolesError):
     """The run was stopped by the user (Ctrl-C) before its outputs were complete."""
+
+
+def quoted(value: Any, limit: int = 60) -> str:
+    """A value as quoted in a message: its repr, cut when long, never failing.
+
+    Examples
+    --------
+    >>> quoted("x" * 70)
+    "'xxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxx..."
+    """
+    try:
+        text = repr(value)
+    except RecursionError:  # a value nested too deeply to print
+        text = "a value nested too deeply to show"
+    return text if len(text) <= limit else text[:limit] + "..."
+
+
+def parameter_message(name: str, owner: str, must: str, value: Any) -> str:
+    """The one shape of every parameter error message (scikit-learn's).
+
+    Parameters
+    ----------
+    name : str
+        The parameter.
+    owner : str
+        Where it belongs: a configuration section (``[walks]``) or a function name.
+    must : str
+        What it must be, completing "must be ...".
+    value : object
+        The value given.
+
+    Examples
+    --------
+    >>> parameter_message("samples", "betweenness", "a whole number of at least 2", 1)
+    "The 'samples' parameter of betweenness must be a whole number of at least 2. Got 1 instead."
+    """
+    return f"The '{name}' parameter of {owner} must be {must}. Got {quoted(value)} instead."

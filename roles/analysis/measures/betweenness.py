@@ -170,16 +170,18 @@ def _heap_down(key, node, where, size, i):  # pragma: no cover - compiled
 
 
 @numba.njit(cache=True)
-def _accumulate(reached, order, pred, pred_ptr, sigma, delta, acc):  # pragma: no cover - compiled
+def _accumulate(reached, tree, acc):  # pragma: no cover - compiled
     """Brandes' back-propagation of dependencies from one source; adds into ``acc``.
 
-    ``order[:reached]`` lists the nodes the source reaches, nearest first (the source
-    itself at 0); the predecessors of ``order[i]`` are ``pred[pred_ptr[i]:pred_ptr[i +
-    1]]``, and ``sigma`` holds the shortest-path counts. Walking the nodes farthest
-    first, ``delta(u) += sigma(u) / sigma(w) * (1 + delta(w))`` for each predecessor
-    ``u`` of ``w`` (Brandes 2001, Theorem 6). ``sigma`` and ``delta`` of the reached
-    nodes are 0 again on exit.
+    ``tree`` is ``(sigma, delta, order, pred, pred_ptr)``: ``order[:reached]`` lists the
+    nodes the source reaches, nearest first (the source itself at 0); the predecessors
+    of ``order[i]`` are ``pred[pred_ptr[i]:pred_ptr[i + 1]]``, and ``sigma`` holds the
+    shortest-path counts. Walking the nodes farthest first,
+    ``delta(u) += sigma(u) / sigma(w) * (1 + delta(w))`` for each predecessor ``u`` of
+    ``w`` (Brandes 2001, Theorem 6). ``sigma`` and ``delta`` of the reached nodes are 0
+    again on exit.
     """
+    sigma, delta, order, pred, pred_ptr = tree
     for i in range(reached - 1, 0, -1):
         w = order[i]
         coeff = (1.0 + delta[w]) / sigma[w]
@@ -194,27 +196,16 @@ def _accumulate(reached, order, pred, pred_ptr, sigma, delta, acc):  # pragma: n
 
 
 @numba.njit(cache=True)
-def _bfs_source(
-    s,
-    indptr,
-    indices,
-    rindptr,
-    rindices,
-    symmetric,
-    level,
-    sigma,
-    delta,
-    order,
-    pred,
-    pred_ptr,
-    acc,
-):  # pragma: no cover - compiled
+def _bfs_source(s, graph, symmetric, level, tree, acc):  # pragma: no cover - compiled
     """Brandes' accumulation from source ``s`` counting steps; adds into ``acc``.
 
     Breadth-first; when a node leaves the queue, its predecessors are its in-neighbours
-    one step nearer the source. ``level`` is -1, ``sigma`` and ``delta`` 0 everywhere on
-    entry and again on exit.
+    one step nearer the source. ``graph`` and ``tree`` as in :func:`_brandes` and
+    :func:`_accumulate`. ``level`` is -1, ``sigma`` and ``delta`` 0 everywhere on entry
+    and again on exit.
     """
+    indptr, indices, _, rindptr, rindices, _ = graph
+    sigma, delta, order, pred, pred_ptr = tree
     level[s] = 0
     order[0] = s
     seen = 1
@@ -246,41 +237,27 @@ def _bfs_source(
                 n_pred += 1
         sigma[v] = sv
     pred_ptr[seen] = n_pred
-    _accumulate(seen, order, pred, pred_ptr, sigma, delta, acc)
+    _accumulate(seen, tree, acc)
     for i in range(seen):
         level[order[i]] = -1
 
 
 @numba.njit(cache=True)
 def _dijkstra_source(
-    s,
-    indptr,
-    indices,
-    length,
-    rindptr,
-    rindices,
-    rlength,
-    symmetric,
-    tol,
-    dist,
-    state,
-    sigma,
-    delta,
-    order,
-    pred,
-    pred_ptr,
-    hkey,
-    hnode,
-    where,
-    acc,
+    s, graph, symmetric, tol, dist, state, heap, tree, acc
 ):  # pragma: no cover - compiled
     """Brandes' accumulation from source ``s`` along lengths; adds into ``acc``.
 
     Dijkstra with an indexed binary heap. When a node is settled its distance is final,
     and its predecessors are the settled in-neighbours ``u`` with
-    ``dist[u] + l(u, v) <= dist[v] * (1 + tol)``. On entry and exit ``dist`` is inf,
-    ``state`` 0 (1 = in the heap, 2 = settled), ``sigma`` and ``delta`` 0.
+    ``dist[u] + l(u, v) <= dist[v] * (1 + tol)``. ``graph`` and ``tree`` as in
+    :func:`_brandes` and :func:`_accumulate`; ``heap`` is ``(key, node, where)``. On
+    entry and exit ``dist`` is inf, ``state`` 0 (1 = in the heap, 2 = settled),
+    ``sigma`` and ``delta`` 0.
     """
+    indptr, indices, length, rindptr, rindices, rlength = graph
+    sigma, delta, order, pred, pred_ptr = tree
+    hkey, hnode, where = heap
     dist[s] = 0.0
     state[s] = 1
     hkey[0] = 0.0
@@ -334,7 +311,7 @@ def _dijkstra_source(
                     _heap_up(hkey, hnode, where, where[w])
         sigma[v] = sv
     pred_ptr[settled] = n_pred
-    _accumulate(settled, order, pred, pred_ptr, sigma, delta, acc)
+    _accumulate(settled, tree, acc)
     for i in range(settled):
         w = order[i]
         dist[w] = np.inf
@@ -342,80 +319,36 @@ def _dijkstra_source(
 
 
 @numba.njit(cache=True, parallel=True)
-def _brandes(
-    indptr,
-    indices,
-    length,
-    rindptr,
-    rindices,
-    rlength,
-    weighted,
-    symmetric,
-    tol,
-    sources,
-    chunk_ptr,
-):  # pragma: no cover - compiled
+def _brandes(graph, weighted, symmetric, tol, sources, chunk_ptr):  # pragma: no cover - compiled
     """Per-chunk sums of Brandes' dependencies ``delta_s(v)`` over the given sources.
 
-    Row ``c`` of the result sums the sources ``sources[chunk_ptr[c]:chunk_ptr[c + 1]]``
-    in that order; chunks run in parallel, each on one thread.
+    ``graph`` is ``(indptr, indices, length, rindptr, rindices, rlength)``
+    (:func:`_adjacency`). Row ``c`` of the result sums the sources
+    ``sources[chunk_ptr[c]:chunk_ptr[c + 1]]`` in that order; chunks run in parallel,
+    each on one thread.
     """
-    n = indptr.shape[0] - 1
+    n = graph[0].shape[0] - 1
+    most_pred = graph[4].shape[0]  # ties into nodes: the most predecessors of one source
     n_chunks = chunk_ptr.shape[0] - 1
     acc = np.zeros((n_chunks, n))
     for c in numba.prange(n_chunks):
-        sigma = np.zeros(n)
-        delta = np.zeros(n)
-        order = np.empty(n, np.int32)
-        pred = np.empty(rindices.shape[0], np.int32)
-        pred_ptr = np.empty(n + 1, np.int64)
+        tree = (
+            np.zeros(n),  # sigma
+            np.zeros(n),  # delta
+            np.empty(n, np.int32),  # order
+            np.empty(most_pred, np.int32),  # pred
+            np.empty(n + 1, np.int64),  # pred_ptr
+        )
         if weighted:
             dist = np.full(n, np.inf)
             state = np.zeros(n, np.int8)
-            hkey = np.empty(n)
-            hnode = np.empty(n, np.int32)
-            where = np.empty(n, np.int32)
+            heap = (np.empty(n), np.empty(n, np.int32), np.empty(n, np.int32))
             for j in range(chunk_ptr[c], chunk_ptr[c + 1]):
-                _dijkstra_source(
-                    sources[j],
-                    indptr,
-                    indices,
-                    length,
-                    rindptr,
-                    rindices,
-                    rlength,
-                    symmetric,
-                    tol,
-                    dist,
-                    state,
-                    sigma,
-                    delta,
-                    order,
-                    pred,
-                    pred_ptr,
-                    hkey,
-                    hnode,
-                    where,
-                    acc[c],
-                )
+                _dijkstra_source(sources[j], graph, symmetric, tol, dist, state, heap, tree, acc[c])
         else:
             level = np.full(n, -1, np.int32)
             for j in range(chunk_ptr[c], chunk_ptr[c + 1]):
-                _bfs_source(
-                    sources[j],
-                    indptr,
-                    indices,
-                    rindptr,
-                    rindices,
-                    symmetric,
-                    level,
-                    sigma,
-                    delta,
-                    order,
-                    pred,
-                    pred_ptr,
-                    acc[c],
-                )
+                _bfs_source(sources[j], graph, symmetric, level, tree, acc[c])
     return acc
 
 
@@ -469,7 +402,7 @@ def _estimates(
     targets). Each is unbiased given whether the node was drawn; with ``k = n`` this
     is the exact ``1 / ((n - 1)(n - 2))``.
     """
-    indptr, indices, length, rindptr, rindices, rlength = adjacency
+    indptr, _, _, rindptr, _, _ = adjacency
     n = indptr.shape[0] - 1
     est = np.zeros((len(drawn), n))
     if n < 3:
@@ -478,19 +411,7 @@ def _estimates(
     bounds = _chunks(sizes)
     sources = np.concatenate(drawn).astype(np.int32)
     symmetric = indptr is rindptr  # undirected: in-neighbours are the same arrays
-    acc = _brandes(
-        indptr,
-        indices,
-        length,
-        rindptr,
-        rindices,
-        rlength,
-        weighted,
-        symmetric,
-        _PATH_TOL,
-        sources,
-        bounds,
-    )
+    acc = _brandes(adjacency, weighted, symmetric, _PATH_TOL, sources, bounds)
     end = 0
     for b, (size, src) in enumerate(zip(sizes, drawn, strict=True)):
         end += size

@@ -31,9 +31,11 @@ from roles.analysis.measures import (
     betweenness,
     betweenness_sources,
     dependents,
+    high_betweenness,
     participation_coefficient,
     rank_bridges,
     rank_hubs,
+    rank_traffic,
     role_region,
     role_table,
     structural_holes,
@@ -577,3 +579,34 @@ def test_role_labels_for_nodes_without_ties_and_single_tie_nodes():
     assert table.loc[7, "role"] == "no ties"
     assert table.loc[0, "role"] == "peripheral"
     assert table.loc[1, "dependents"] == 1
+
+
+@pytest.mark.parametrize("share", [0, 0.0, 1.5, -0.1, float("nan"), True, "0.1", None])
+def test_shares_outside_0_1_are_refused_in_the_config_message_shape(share):
+    # A share of nodes must lie in (0, 1]; 1.5 used to fail with an IndexError and 0
+    # used to keep the top node silently.
+    G = nx.karate_club_graph()
+    table = role_table(G, dict.fromkeys(G, 0))
+    shape = r"^The 'share' parameter of {} must be a number greater than 0 and at most 1\. Got "
+    with pytest.raises(ValueError, match=shape.format("high_betweenness")):
+        high_betweenness(dict(table["betweenness"]), share)
+    with pytest.raises(ValueError, match=shape.format("rank_traffic")):
+        rank_traffic(table, share)
+    with pytest.raises(ValueError, match=r"^The 'bridge_share' parameter of role_table"):
+        role_table(G, dict.fromkeys(G, 0), bridge_share=share)
+
+
+def test_share_of_one_keeps_every_node_with_betweenness():
+    b = {"a": 0.5, "b": 0.1, "c": 0.0}
+    assert high_betweenness(b, 1.0) == {"a": True, "b": True, "c": False}  # 0 never counts
+
+
+@pytest.mark.parametrize("top", [-1, 1.5, True])
+def test_rank_top_must_be_a_whole_number(top):
+    G = nx.karate_club_graph()
+    table = role_table(G, dict.fromkeys(G, 0))
+    with pytest.raises(ValueError, match=r"^The 'top' parameter of rank_hubs must be None or a"):
+        rank_hubs(table, top)
+    with pytest.raises(ValueError, match=r"^The 'top' parameter of rank_bridges"):
+        rank_bridges(table, top)
+    assert rank_hubs(table, 0) == []

@@ -8,6 +8,7 @@ published role region (R1-R7) is kept beside each label. The ``rank_*`` function
 from __future__ import annotations
 
 import math
+import numbers
 from collections.abc import Hashable, Mapping
 from typing import Any
 
@@ -15,6 +16,7 @@ import networkx as nx
 import numpy as np
 import pandas as pd
 
+from ...errors import parameter_message
 from ._ties import _by_community, _codes, _symmetric, _Ties, _ties
 from .betweenness import EXACT_LIMIT, _betweenness
 from .cartography import _TOL, HUB_Z, _participation, _within_z, role_region
@@ -95,6 +97,15 @@ def role_table(
         within_z, constraint, effective_size, dependents, region, role``.
         ``table.attrs["betweenness"]`` holds the :class:`BetweennessInfo`.
 
+    Raises
+    ------
+    InputError
+        A node has no community label, a weight is not a positive number, or the
+        network has parallel ties.
+    ValueError
+        ``bridge_share`` is not in (0, 1], or ``samples`` is not a whole number of at
+        least 2.
+
     Notes
     -----
     ``role`` is decided by two tests:
@@ -122,6 +133,7 @@ def role_table(
     .. [2] L. C. Freeman, "A set of measures of centrality based on betweenness",
        Sociometry 40:35-41, 1977.
     """
+    _check_share("role_table", "bridge_share", bridge_share)
     ties = _ties(G, weight)
     codes = _codes(ties, community)
     P = _participation(ties, codes)
@@ -152,6 +164,14 @@ def role_table(
     )
     table.attrs["betweenness"] = info
     return table
+
+
+def _check_share(owner: str, name: str, share: Any) -> None:
+    ok = isinstance(share, numbers.Real) and not isinstance(share, bool)
+    if not (ok and 0.0 < float(share) <= 1.0):
+        raise ValueError(
+            parameter_message(name, owner, "a number greater than 0 and at most 1", share)
+        )
 
 
 def _high(b: np.ndarray, share: float) -> np.ndarray:
@@ -193,17 +213,29 @@ def high_betweenness(
     dict
         Node -> bool.
 
+    Raises
+    ------
+    ValueError
+        ``share`` is not in (0, 1].
+
     Examples
     --------
     >>> high_betweenness({"a": 0.5, "b": 0.5, "c": 0.1, "d": 0.0}, share=0.25)
     {'a': True, 'b': True, 'c': False, 'd': False}
     """
+    _check_share("high_betweenness", "share", share)
     nodes = list(betweenness)
     b = np.fromiter((float(betweenness[v]) for v in nodes), dtype=np.float64, count=len(nodes))
     return dict(zip(nodes, _high(b, share).tolist(), strict=True))
 
 
-def _ranked(table: pd.DataFrame, roles: tuple[str, ...], keys: list[str], top: int | None):
+def _ranked(
+    owner: str, table: pd.DataFrame, roles: tuple[str, ...], keys: list[str], top: int | None
+) -> list[Hashable]:
+    if top is not None and (
+        isinstance(top, bool) or not isinstance(top, numbers.Integral) or top < 0
+    ):
+        raise ValueError(parameter_message("top", owner, "None or a whole number >= 0", top))
     picked = table[table["role"].isin(roles)]
     # Stable sort on the keys, most first; graph order breaks exact ties.
     order = picked.sort_values(keys, ascending=False, kind="mergesort")
@@ -228,8 +260,13 @@ def rank_bridges(table: pd.DataFrame, top: int | None = None) -> list[Hashable]:
     -------
     list
         Node names.
+
+    Raises
+    ------
+    ValueError
+        ``top`` is not None or a whole number >= 0.
     """
-    return _ranked(table, _BRIDGE_ROLES, ["betweenness", "participation"], top)
+    return _ranked("rank_bridges", table, _BRIDGE_ROLES, ["betweenness", "participation"], top)
 
 
 def rank_hubs(table: pd.DataFrame, top: int | None = None) -> list[Hashable]:
@@ -249,8 +286,13 @@ def rank_hubs(table: pd.DataFrame, top: int | None = None) -> list[Hashable]:
     -------
     list
         Node names.
+
+    Raises
+    ------
+    ValueError
+        ``top`` is not None or a whole number >= 0.
     """
-    return _ranked(table, _HUB_ROLES, ["within_z", "betweenness"], top)
+    return _ranked("rank_hubs", table, _HUB_ROLES, ["within_z", "betweenness"], top)
 
 
 def rank_traffic(table: pd.DataFrame, share: float = BRIDGE_SHARE) -> list[Hashable]:
@@ -273,11 +315,17 @@ def rank_traffic(table: pd.DataFrame, share: float = BRIDGE_SHARE) -> list[Hasha
     list
         Node names.
 
+    Raises
+    ------
+    ValueError
+        ``share`` is not in (0, 1].
+
     References
     ----------
     .. [1] L. C. Freeman, "A set of measures of centrality based on betweenness",
        Sociometry 40:35-41, 1977.
     """
+    _check_share("rank_traffic", "share", share)
     b = table["betweenness"].to_numpy(dtype=np.float64)
     picked = table[_high(b, share)]
     order = picked.sort_values("betweenness", ascending=False, kind="mergesort")

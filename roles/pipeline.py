@@ -319,7 +319,7 @@ def run(
     community_of = dict(zip(names, communities.tolist(), strict=True))
 
     with timer.stage("roles and measures"):
-        table = role_table(graph, community_of, seed=seeds.roles)
+        table = role_table(graph, community_of, seed=seeds.roles, samples=spend.betweenness_sources)
 
     with timer.stage("comparison"):
         comparison = None

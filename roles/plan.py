@@ -6,7 +6,8 @@ both follow it, so a re-run differs from the run only in its seed:
 - :class:`~roles.seeds.StageSeeds`: every stage's seed, drawn once from the one user
   seed (in :mod:`roles.seeds`, which every stage may import).
 - :func:`budget`: one table of size limits (walk budget, re-runs, randomisations,
-  sampled fits) giving one frozen :class:`Budget` with the notes the report prints.
+  sampled fits, betweenness sources) giving one frozen :class:`Budget` with the notes
+  the report prints.
 - :func:`view_grouper`: what each view's process does after its embedding (group the
   members with the network's ties, find nearest neighbours); :func:`rerun_groups` is a
   whole re-run of the views with another seed.
@@ -23,6 +24,7 @@ from typing import Any
 import numpy as np
 
 from .analysis.compare import nearest_neighbours
+from .analysis.measures import betweenness_sources
 from .config import Config
 from .embedding.budget import walk_budget
 from .embedding.cluster import Grouping, Ties, cluster, fitted_rows, ties_of
@@ -75,6 +77,10 @@ class Budget:
     fitted_rows : int
         Members HDBSCAN is fitted on in each view (all members with ties, or a sample:
         :func:`roles.embedding.cluster.fitted_rows`).
+    betweenness_sources : int or None
+        Sources of the sampled betweenness, ``None`` for exact betweenness
+        (:func:`roles.analysis.measures.betweenness_sources`; the report states the
+        estimate's error).
     walk_note, confidence_note, cluster_note : str or None
         What was cut back or raised, for the report; ``None`` when nothing was.
     """
@@ -83,6 +89,7 @@ class Budget:
     reruns: int
     randomisations: int
     fitted_rows: int
+    betweenness_sources: int | None
     walk_note: str | None
     confidence_note: str | None
     cluster_note: str | None
@@ -139,7 +146,8 @@ def _sampled_fit_note(fitted: int, n_rows: int) -> str | None:
 
 
 def budget(n_nodes: int, n_tied: int, n_ties: int, config: Config) -> Budget:
-    """The size limits of one run, in one place.
+    """The size limits of one run, in one place: walk budget, re-runs, randomisations,
+    sampled fit and betweenness sources.
 
     Parameters
     ----------
@@ -160,8 +168,8 @@ def budget(n_nodes: int, n_tied: int, n_ties: int, config: Config) -> Budget:
     Examples
     --------
     >>> b = budget(50_000, 50_000, 400_000, Config())
-    >>> b.reruns, b.randomisations, b.fitted_rows
-    (0, 20, 20000)
+    >>> b.reruns, b.randomisations, b.fitted_rows, b.betweenness_sources
+    (0, 20, 20000, 1000)
     """
     walked, walk_note = walk_budget(n_nodes, n_ties, config)  # the user's keys are kept
     reruns, randomisations, confidence_note = _confidence_limits(
@@ -177,6 +185,7 @@ def budget(n_nodes: int, n_tied: int, n_ties: int, config: Config) -> Budget:
         reruns=reruns,
         randomisations=randomisations,
         fitted_rows=rows,
+        betweenness_sources=betweenness_sources(n_nodes),
         walk_note=walk_note,
         confidence_note=confidence_note,
         cluster_note=_sampled_fit_note(rows, n_tied),

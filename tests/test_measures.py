@@ -24,20 +24,27 @@ import pytest
 
 from roles.analysis.measures import (
     EXACT_LIMIT,
-    _adjacency,
-    _estimates,
-    _ties,
+    HUB_P,
+    HUB_Z,
+    NON_HUB_P,
+    ROLE_REGIONS,
     betweenness,
+    betweenness_sources,
     dependents,
+    high_betweenness,
     participation_coefficient,
     rank_bridges,
     rank_hubs,
+    rank_traffic,
     role_region,
     role_table,
     structural_holes,
     within_module_z,
 )
+from roles.analysis.measures._ties import _ties
+from roles.analysis.measures.betweenness import _adjacency, _estimates
 from roles.errors import InputError
+from roles.report import figures
 
 SEEDS = [0, 1, 2, 3, 4]
 
@@ -159,8 +166,26 @@ def test_role_region_boundaries(z, P, region):
 def test_role_region_tolerates_rounding_at_a_bound():
     # 1 - 0.95 is 0.05000000000000004 in floating point; still on the bound.
     assert role_region(0.0, 1 - 0.95) == "R1"
-    with pytest.raises(ValueError):
+    # Message shape of the configuration's errors (scikit-learn's).
+    with pytest.raises(
+        ValueError, match=r"^The 'z' parameter of role_region must be a finite number\. Got nan"
+    ):
         role_region(float("nan"), 0.1)
+    with pytest.raises(ValueError, match=r"^The 'P' parameter of role_region .* Got inf instead"):
+        role_region(0.0, math.inf)
+
+
+def test_region_table_is_the_one_role_region_reads_and_the_role_map_draws():
+    # Published bounds (Guimera & Amaral 2005): non-hubs split at P = 0.05, 0.62, 0.80,
+    # hubs at 0.30, 0.75, hubs from z = 2.5.
+    assert (HUB_Z, NON_HUB_P, HUB_P) == (2.5, (0.05, 0.62, 0.80), (0.30, 0.75))
+    assert [code for code, _, _ in ROLE_REGIONS] == [f"R{i}" for i in range(1, 8)]
+    for code, (z0, _), (p0, p1) in ROLE_REGIONS:
+        z = 3.0 if z0 == HUB_Z else 0.0
+        assert role_region(z, (p0 + p1) / 2) == code  # the middle of each region
+        assert role_region(z, p1) == code  # upper bounds belong to the region
+    drawn = [(z, p) for _, z, p in figures.ROLE_REGIONS]
+    assert drawn == [(z, p) for _, z, p in ROLE_REGIONS]
 
 
 # -------------------------------------------------------------------- betweenness
@@ -329,8 +354,36 @@ def test_betweenness_default_sample_size():
     assert (info.method, info.k) == ("sampled", math.ceil(1150**2 / 1200))
     _, info = betweenness(nx.path_graph(900), exact_limit=500, seed=0)
     assert info.method == "exact"  # 1,000 sources would be more than the nodes
-    with pytest.raises(ValueError, match="at least 2"):
+    with pytest.raises(
+        ValueError,
+        match=r"^The 'samples' parameter of betweenness must be None or a whole number of at "
+        r"least 2\. Got 1 instead\.$",
+    ):
         betweenness(G, exact_limit=10, seed=0, samples=1)
+    with pytest.raises(ValueError, match=r"'samples' parameter .* Got 2\.5 instead"):
+        betweenness(G, exact_limit=10, seed=0, samples=2.5)
+
+
+def test_betweenness_sources_is_the_default_of_betweenness_and_role_table():
+    # Our rule: exact up to exact_limit, then exact_limit**2 / n sources, at least 1,000.
+    assert betweenness_sources(EXACT_LIMIT) is None
+    assert betweenness_sources(20_000) == math.ceil(EXACT_LIMIT**2 / 20_000) == 1250
+    assert betweenness_sources(1_000_000) == 1000
+    assert betweenness_sources(900, exact_limit=500) is None  # 1,000 sources > 900 nodes
+    G = nx.barabasi_albert_graph(1200, 2, seed=3)
+    comm = {v: v % 7 for v in G}
+    k = betweenness_sources(len(G), exact_limit=500)
+    assert k == 1000
+    default = role_table(G, comm, exact_limit=500, seed=4)
+    given = role_table(G, comm, exact_limit=500, seed=4, samples=k)
+    assert default.equals(given)
+    assert default.attrs["betweenness"] == given.attrs["betweenness"]
+    assert given.attrs["betweenness"].k == 1000
+    exact = role_table(G, comm, exact_limit=500, seed=4, samples=len(G))
+    assert exact.attrs["betweenness"].method == "exact"
+    small = nx.karate_club_graph()
+    none = role_table(small, dict.fromkeys(small, 0), samples=betweenness_sources(len(small)))
+    assert none.equals(role_table(small, dict.fromkeys(small, 0)))
 
 
 def test_betweenness_sampled_estimate_within_its_stated_error():
@@ -526,3 +579,34 @@ def test_role_labels_for_nodes_without_ties_and_single_tie_nodes():
     assert table.loc[7, "role"] == "no ties"
     assert table.loc[0, "role"] == "peripheral"
     assert table.loc[1, "dependents"] == 1
+
+
+@pytest.mark.parametrize("share", [0, 0.0, 1.5, -0.1, float("nan"), True, "0.1", None])
+def test_shares_outside_0_1_are_refused_in_the_config_message_shape(share):
+    # A share of nodes must lie in (0, 1]; 1.5 used to fail with an IndexError and 0
+    # used to keep the top node silently.
+    G = nx.karate_club_graph()
+    table = role_table(G, dict.fromkeys(G, 0))
+    shape = r"^The 'share' parameter of {} must be a number greater than 0 and at most 1\. Got "
+    with pytest.raises(ValueError, match=shape.format("high_betweenness")):
+        high_betweenness(dict(table["betweenness"]), share)
+    with pytest.raises(ValueError, match=shape.format("rank_traffic")):
+        rank_traffic(table, share)
+    with pytest.raises(ValueError, match=r"^The 'bridge_share' parameter of role_table"):
+        role_table(G, dict.fromkeys(G, 0), bridge_share=share)
+
+
+def test_share_of_one_keeps_every_node_with_betweenness():
+    b = {"a": 0.5, "b": 0.1, "c": 0.0}
+    assert high_betweenness(b, 1.0) == {"a": True, "b": True, "c": False}  # 0 never counts
+
+
+@pytest.mark.parametrize("top", [-1, 1.5, True])
+def test_rank_top_must_be_a_whole_number(top):
+    G = nx.karate_club_graph()
+    table = role_table(G, dict.fromkeys(G, 0))
+    with pytest.raises(ValueError, match=r"^The 'top' parameter of rank_hubs must be None or a"):
+        rank_hubs(table, top)
+    with pytest.raises(ValueError, match=r"^The 'top' parameter of rank_bridges"):
+        rank_bridges(table, top)
+    assert rank_hubs(table, 0) == []

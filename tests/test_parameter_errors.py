@@ -13,12 +13,13 @@ import pytest
 
 from roles.analysis import confidence
 from roles.analysis.compare import compare_views
+from roles.analysis.measures import betweenness, role_region
 from roles.analysis.modularity import modularity
 from roles.config import Config, ConfigError, WalkConfig
 from roles.embedding.embed import embed_walks
 from roles.embedding.graph import to_csr
 
-SHAPE = re.compile(r"^The '\w+' parameter( of \[[\w.]+\])? must be .+\. Got .+ instead\.$", re.S)
+SHAPE = re.compile(r"^The '\w+' parameter( of [\[\]\w.]+)? must be .+\. Got .+ instead\.$", re.S)
 
 _CSR = to_csr(nx.karate_club_graph())
 _LABELS = np.zeros(34, dtype=np.int64)
@@ -41,6 +42,12 @@ CASES: list[tuple[str, Callable[[], Any], type[Exception]]] = [
         ValueError,
     ),
     ("labels", lambda: modularity(_CSR, np.zeros(3)), ValueError),
+    ("region", lambda: role_region(float("nan"), 0.5), ValueError),
+    (
+        "samples",
+        lambda: betweenness(nx.karate_club_graph(), exact_limit=10, seed=0, samples=1),
+        ValueError,
+    ),
     (
         "feed",
         lambda: embed_walks(

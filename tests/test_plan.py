@@ -81,3 +81,12 @@ def test_walk_budget_passes_through() -> None:
     assert big.config.walks.walk_length < Config().walks.walk_length and big.walk_note
     tiny = budget(34, 34, 78, Config())
     assert tiny.config.embedding.epochs > Config().embedding.epochs and tiny.walk_note
+
+
+def test_betweenness_sources_are_in_the_table() -> None:
+    # Exact up to 5,000 members (EXACT_LIMIT); beyond, ceil(5000**2 / n) sources, at
+    # least 1,000 (roles.analysis.measures.betweenness_sources, measured in
+    # benchmarks/bench_measures.py).
+    assert budget(5000, 5000, 20_000, Config()).betweenness_sources is None
+    assert budget(20_000, 20_000, 200_000, Config()).betweenness_sources == 1250
+    assert budget(100_000, 100_000, 10**6, Config()).betweenness_sources == 1000

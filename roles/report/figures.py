@@ -24,6 +24,8 @@ from typing import Any
 
 import numpy as np
 
+from ..analysis.measures.cartography import HUB_P, HUB_Z, NON_HUB_P
+from ..analysis.measures.cartography import ROLE_REGIONS as REGIONS
 from .names import short_name
 
 __all__ = [
@@ -58,19 +60,20 @@ PALETTE = (
 MARKERS = ("o", "s", "^", "D", "v", "P", "h", "*")
 _OTHER = "#9a9a9a"
 
-#: Role regions of Guimerà & Amaral (2005) as (name, z range, P range). Bounds follow
-#: this project's reading: hubs have z >= 2.5; a P bound belongs to the region below it
-#: (R1 is P <= 0.05, R2 is 0.05 < P <= 0.62, ...).
-ROLE_REGIONS = (
-    ("R1 ultra-peripheral", (-np.inf, 2.5), (0.0, 0.05)),
-    ("R2 peripheral", (-np.inf, 2.5), (0.05, 0.62)),
-    ("R3 connector", (-np.inf, 2.5), (0.62, 0.80)),
-    ("R4 kinless", (-np.inf, 2.5), (0.80, 1.0)),
-    ("R5 provincial hub", (2.5, np.inf), (0.0, 0.30)),
-    ("R6 connector hub", (2.5, np.inf), (0.30, 0.75)),
-    ("R7 kinless hub", (2.5, np.inf), (0.75, 1.0)),
-)
-_HUB_Z = 2.5
+_REGION_NAMES = {
+    "R1": "ultra-peripheral",
+    "R2": "peripheral",
+    "R3": "connector",
+    "R4": "kinless",
+    "R5": "provincial hub",
+    "R6": "connector hub",
+    "R7": "kinless hub",
+}
+
+#: Role regions of Guimerà & Amaral (2005) as (name, z range, P range), the bounds
+#: those of :mod:`roles.analysis.measures.cartography`: hubs have z >= 2.5; a P bound
+#: belongs to the region below it (R1 is P <= 0.05, R2 is 0.05 < P <= 0.62, ...).
+ROLE_REGIONS = tuple((f"{code} {_REGION_NAMES[code]}", z, p) for code, z, p in REGIONS)
 
 # Marker, colour and size of the report's role labels in the role map; labels the
 # pipeline may add later fall back to the remaining shapes.
@@ -540,20 +543,20 @@ def role_map(
     zmin = min(-1.5, float(np.nanmin(z[ok])) - 0.3) if ok.any() else -1.5
 
     def paint(fig: Any, ax: Any) -> None:
-        ax.axhspan(_HUB_Z, zmax, color="#eeeeee", zorder=0, lw=0)
-        ax.axhline(_HUB_Z, color="#222222", lw=1.0, ls="-", zorder=1)
-        for x in (0.05, 0.62, 0.80):
-            ax.plot([x, x], [zmin, _HUB_Z], color="#444444", lw=0.7, ls="--", zorder=1)
-        for x in (0.30, 0.75):
-            ax.plot([x, x], [_HUB_Z, zmax], color="#444444", lw=0.7, ls="--", zorder=1)
+        ax.axhspan(HUB_Z, zmax, color="#eeeeee", zorder=0, lw=0)
+        ax.axhline(HUB_Z, color="#222222", lw=1.0, ls="-", zorder=1)
+        for x in NON_HUB_P:
+            ax.plot([x, x], [zmin, HUB_Z], color="#444444", lw=0.7, ls="--", zorder=1)
+        for x in HUB_P:
+            ax.plot([x, x], [HUB_Z, zmax], color="#444444", lw=0.7, ls="--", zorder=1)
         for name, (z0, _), (p0, p1) in ROLE_REGIONS:
             code, text = name.split(" ", 1)
-            hub = z0 >= _HUB_Z
+            hub = z0 >= HUB_Z
             ax.text(
                 (p0 + p1) / 2,
                 # Hub regions are named above the plot, the others just under the hub
                 # line, where points are rare; points are drawn over the names.
-                zmax + 0.02 * (zmax - zmin) if hub else _HUB_Z - 0.03 * (zmax - zmin),
+                zmax + 0.02 * (zmax - zmin) if hub else HUB_Z - 0.03 * (zmax - zmin),
                 code if p1 - p0 < 0.1 else f"{code} {text}",
                 ha="center",
                 va="bottom" if hub else "top",

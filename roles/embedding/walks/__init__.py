@@ -11,7 +11,7 @@ import math
 
 import numpy as np
 
-from ...config import P_Q_RANGE
+from ...config import P_Q_RANGE, _got
 from ...errors import ConfigError, InputError
 from ..graph import CSRGraph
 from . import kernel as _kernel
@@ -25,8 +25,8 @@ def _check_bias(name: str, value: float) -> float:
     ok = not isinstance(value, bool) and isinstance(value, (int, float, np.floating, np.integer))
     if not ok or not (math.isfinite(float(value)) and low <= float(value) <= high):
         raise ConfigError(
-            f"The '{name}' parameter must be a number from {low:g} to {high:g}. "
-            f"Got {value!r} instead."
+            f"The '{name}' parameter of generate_walks must be a number from {low:g} to "
+            f"{high:g}. Got {_got(value)} instead."
         )
     return float(value)
 
@@ -34,8 +34,8 @@ def _check_bias(name: str, value: float) -> float:
 def _check_count(name: str, value: int, low: int) -> int:
     if isinstance(value, bool) or not isinstance(value, (int, np.integer)) or value < low:
         raise ConfigError(
-            f"The '{name}' parameter must be a whole number of at least {low}. "
-            f"Got {value!r} instead."
+            f"The '{name}' parameter of generate_walks must be a whole number of at least "
+            f"{low}. Got {_got(value)} instead."
         )
     return int(value)
 
@@ -179,7 +179,10 @@ def visit_counts(walks: np.ndarray, n_nodes: int, *, min_length: int = 1) -> np.
     """Occurrences of each node in the walks that have at least ``min_length`` nodes."""
     walks = np.ascontiguousarray(walks, dtype=np.int32)
     if walks.size and int(walks.max()) >= n_nodes:
-        raise ValueError("walks refer to a node index >= n_nodes")
+        raise ValueError(
+            "The 'walks' parameter of visit_counts must hold node indices below n_nodes "
+            f"({n_nodes}). Got the index {int(walks.max())} instead."
+        )
     return _kernel.visit_counts(walks, _kernel.row_lengths(walks), n_nodes, min_length)
 
 

@@ -7,6 +7,7 @@ package's one converter of ties to compressed sparse rows.
 
 from __future__ import annotations
 
+import itertools
 from dataclasses import dataclass
 
 import networkx as nx
@@ -80,14 +81,25 @@ def edge_arrays(
     ([0, 1], [1, 2], [1.0, 1.0])
     """
     index = {node: i for i, node in enumerate(graph.nodes())}
-    m = graph.number_of_edges()
-    ties = graph.edges() if weight is None else graph.edges(data=weight, default=1.0)
-    columns = list(zip(*ties, strict=True)) or [(), (), ()]
-    src = np.fromiter(map(index.__getitem__, columns[0]), dtype=np.int64, count=m)
-    dst = np.fromiter(map(index.__getitem__, columns[1]), dtype=np.int64, count=m)
     if weight is None:
-        return src, dst, None
-    return src, dst, np.fromiter(map(float, columns[2]), dtype=np.float64, count=m)
+        flat = np.fromiter(
+            itertools.chain.from_iterable((index[a], index[b]) for a, b in graph.edges()),
+            dtype=np.int64,
+            count=2 * graph.number_of_edges(),
+        )
+        return flat[0::2], flat[1::2], None
+    src: list[int] = []
+    dst: list[int] = []
+    wts: list[float] = []
+    for a, b, x in graph.edges(data=weight, default=1.0):
+        src.append(index[a])
+        dst.append(index[b])
+        wts.append(float(x))
+    return (
+        np.asarray(src, dtype=np.int64),
+        np.asarray(dst, dtype=np.int64),
+        np.asarray(wts, dtype=np.float64),
+    )
 
 
 @njit(cache=True, nogil=True)
@@ -155,8 +167,8 @@ def csr_arrays(
     ([0, 1, 3, 4], [1, 0, 2, 1])
     """
     indptr, indices, tie = _csr_kernel(
-        np.asarray(src, dtype=np.int64),
-        np.asarray(dst, dtype=np.int64),
+        np.ascontiguousarray(src, dtype=np.int64),
+        np.ascontiguousarray(dst, dtype=np.int64),
         np.int64(n_nodes),
         not directed,
     )

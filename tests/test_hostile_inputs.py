@@ -19,7 +19,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-import roles.io.load
+import roles.io.load.files
 from roles.config import load_config
 from roles.errors import ConfigError, InputError, RolesError
 from roles.io.load import load_edges, load_nodes
@@ -274,7 +274,7 @@ def test_not_a_regular_file():
 
 
 def test_csv_size_cap(tmp_path, monkeypatch):
-    monkeypatch.setattr(roles.io.load, "MAX_TEXT_BYTES", 100)
+    monkeypatch.setattr(roles.io.load.files, "MAX_TEXT_BYTES", 100)
     refused(write(tmp_path, "big.csv", "source,target\n" + "a,b\n" * 50), None, "MB")
 
 
@@ -356,7 +356,7 @@ def test_graphml_empty_node_id(tmp_path):
 
 
 def test_graphml_size_cap(tmp_path, monkeypatch):
-    monkeypatch.setattr(roles.io.load, "MAX_GRAPHML_BYTES", 1000)
+    monkeypatch.setattr(roles.io.load.files, "MAX_GRAPHML_BYTES", 1000)
     path = tmp_path / "k.graphml"
     nx.write_graphml(nx.karate_club_graph(), path)
     refused(path, None, "MB", "CSV")
@@ -412,7 +412,7 @@ def test_json_deep_nesting(tmp_path):
 
 
 def test_json_size_cap(tmp_path, monkeypatch):
-    monkeypatch.setattr(roles.io.load, "MAX_JSON_BYTES", 10)
+    monkeypatch.setattr(roles.io.load.files, "MAX_JSON_BYTES", 10)
     refused(write(tmp_path, "j.json", json.dumps({"nodes": [], "edges": []})), None, "MB")
 
 

@@ -1,6 +1,6 @@
 """Inputs that must be accepted (issue 6): edge lists in several shapes, GraphML, JSON,
 nodes files. Expected graphs come from networkx's own readers and bundled datasets where
-one exists, otherwise from the merge rule documented in roles/load.py, worked by hand."""
+one exists, otherwise from the merge rule documented in roles.io.load, worked by hand."""
 
 from __future__ import annotations
 

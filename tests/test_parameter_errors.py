@@ -18,6 +18,7 @@ from roles.analysis.modularity import modularity
 from roles.config import Config, ConfigError, WalkConfig
 from roles.embedding.embed import embed_walks
 from roles.embedding.graph import to_csr
+from roles.embedding.walks import generate_walks
 
 SHAPE = re.compile(r"^The '\w+' parameter( of [\[\]\w.]+)? must be .+\. Got .+ instead\.$", re.S)
 
@@ -42,6 +43,11 @@ CASES: list[tuple[str, Callable[[], Any], type[Exception]]] = [
         ValueError,
     ),
     ("labels", lambda: modularity(_CSR, np.zeros(3)), ValueError),
+    (
+        "walk bias",
+        lambda: generate_walks(_CSR, walks_per_node=1, walk_length=5, p=9.0, q=1.0, seed=0),
+        ConfigError,
+    ),
     ("region", lambda: role_region(float("nan"), 0.5), ValueError),
     (
         "samples",

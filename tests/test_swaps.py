@@ -4,8 +4,8 @@ Sources of the expected answers:
 - The move is that of Milo et al. (arXiv:cond-mat/0312028, 2003) as networkx's
   ``double_edge_swap`` makes it: two ties a-b, c-d (uniform, random orientation) become
   a-c, b-d unless that makes a self-loop or an existing tie.
-- Degrees, simplicity and the CSR layout are checked against networkx (``degree``,
-  ``to_csr`` of a networkx graph).
+- Degrees and simplicity are checked against networkx (``degree``); the CSR layout of
+  the swapped ties against scipy's CSR of networkx's adjacency matrix.
 - Distributions: the simple graphs with a given degree sequence are enumerated by brute
   force over edge subsets (and, for the 2-regular case, counted by hand), and the exact
   distribution of the swap chain is computed by enumerating every pick of two oriented
@@ -26,8 +26,8 @@ import numpy as np
 import pytest
 from scipy.stats import chisquare
 
-from roles.analysis.swaps import double_edge_swap, edges_to_csr_arrays
-from roles.embedding.graph import to_csr
+from roles.analysis.swaps import double_edge_swap
+from roles.embedding.graph import csr_arrays
 
 
 def _ties(g: nx.Graph) -> tuple[np.ndarray, np.ndarray, int]:
@@ -109,15 +109,16 @@ def test_bad_ties_are_refused():
         double_edge_swap([0], [1], n_nodes=2, nswap=1, max_tries=10, seed=0)
 
 
-def test_csr_arrays_match_to_csr():
+def test_csr_of_swapped_ties_matches_scipy():
     g = GRAPHS["scale-free"]
     u, v, n = _ties(g)
     r = double_edge_swap(u, v, n_nodes=n, nswap=2000, max_tries=10**6, seed=3)
-    indptr, indices = edges_to_csr_arrays(r.u, r.v, n)
+    indptr, indices, _ = csr_arrays(r.u, r.v, n, directed=False)
     h = nx.Graph()
     h.add_nodes_from(range(n))
     h.add_edges_from(zip(r.u.tolist(), r.v.tolist(), strict=True))
-    want = to_csr(h)  # rows sorted, both directions stored (DEVELOPERS.md contract)
+    want = nx.to_scipy_sparse_array(h, nodelist=range(n), format="csr")  # networkx + scipy
+    want.sort_indices()
     assert np.array_equal(indptr, want.indptr) and np.array_equal(indices, want.indices)
     assert indptr.dtype == np.int64 and indices.dtype == np.int32
 

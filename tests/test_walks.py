@@ -11,7 +11,13 @@ import pytest
 from scipy.stats import chisquare
 
 from roles.embedding.graph import to_csr
-from roles.embedding.walks import generate_walks, kernel, walk_lengths, walks_to_names
+from roles.embedding.walks import (
+    generate_walks,
+    kernel,
+    visit_counts,
+    walk_lengths,
+    walks_to_names,
+)
 from roles.errors import ConfigError, InputError
 
 # Local and far views of the default configuration (roles.config), plus settings with
@@ -248,8 +254,16 @@ def test_star_hub_memory_is_proportional_to_edges() -> None:
 )
 def test_bad_parameters_are_refused(kw: dict) -> None:
     args = dict(walks_per_node=1, walk_length=3, seed=0) | kw
-    with pytest.raises(ConfigError):
+    # The configuration's message shape (roles/config.py, after scikit-learn's).
+    shape = r"^The '\w+' parameter of generate_walks must be .+\. Got .+ instead\.$"
+    with pytest.raises(ConfigError, match=shape):
         generate_walks(to_csr(nx.path_graph(3)), **args)
+
+
+def test_visit_counts_refuses_an_index_beyond_the_nodes() -> None:
+    shape = r"^The 'walks' parameter of visit_counts must be .+\. Got 'index 3' instead\.$"
+    with pytest.raises(ValueError, match=shape):
+        visit_counts(np.array([[0, 3]], dtype=np.int32), 3)
 
 
 def test_non_positive_weight_is_refused() -> None:

@@ -37,7 +37,6 @@ from __future__ import annotations
 
 import dataclasses
 import functools
-import itertools
 import math
 import multiprocessing
 import os
@@ -51,13 +50,14 @@ import networkx as nx
 import numpy as np
 
 from ..config import Config
-from ..embedding.graph import CSRGraph
+from ..embedding.graph import CSRGraph, edge_arrays
+from ..embedding.graph import from_ties as _csr  # the unweighted undirected CSRGraph of u-v
 from ..errors import parameter_error
 from ..plan import rerun_groups
 from ..seeds import seed_list
 from ..workers import worker_pool
 from .modularity import louvain, modularity
-from .swaps import Swapped, double_edge_swap, edges_to_csr_arrays
+from .swaps import Swapped, double_edge_swap
 
 __all__ = [
     "StructureTest",
@@ -274,13 +274,7 @@ def _test_arrays(graph: nx.Graph) -> tuple[list, np.ndarray, np.ndarray]:
     Nodes keep the graph's order; ties come sorted, ``u < v``.
     """
     nodes = list(graph.nodes())
-    index = {v: i for i, v in enumerate(nodes)}
-    flat = np.fromiter(
-        itertools.chain.from_iterable((index[a], index[b]) for a, b in graph.edges()),
-        dtype=np.int64,
-        count=2 * graph.number_of_edges(),
-    )
-    a, b = flat[0::2], flat[1::2]
+    a, b, _ = edge_arrays(graph)
     keep = a != b
     lo, hi = np.minimum(a[keep], b[keep]), np.maximum(a[keep], b[keep])
     n = len(nodes)
@@ -291,13 +285,6 @@ def _test_arrays(graph: nx.Graph) -> tuple[list, np.ndarray, np.ndarray]:
     tied[hi] = True
     new = np.cumsum(tied) - 1
     return [nodes[i] for i in np.flatnonzero(tied)], new[lo], new[hi]
-
-
-def _csr(names: tuple[str, ...], u: np.ndarray, v: np.ndarray) -> CSRGraph:
-    """The unweighted undirected CSRGraph of the ties ``u[e]-v[e]``."""
-    indptr, indices = edges_to_csr_arrays(u, v, len(names))
-    weights = np.ones(indices.shape[0], dtype=np.float32)
-    return CSRGraph(names=names, indptr=indptr, indices=indices, weights=weights, directed=False)
 
 
 def _best_modularity(csr: CSRGraph, seed: int) -> float:

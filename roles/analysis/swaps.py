@@ -38,7 +38,7 @@ from dataclasses import dataclass
 import numpy as np
 from numba import njit
 
-__all__ = ["Swapped", "double_edge_swap", "edges_to_csr_arrays"]
+__all__ = ["Swapped", "double_edge_swap"]
 
 # The walk kernel's generator (SplitMix64 [4], Lemire's bounded integers [5]); the
 # lowest of its spare bits picks a tie's orientation.
@@ -221,37 +221,3 @@ def double_edge_swap(
     if repeated >= 0:
         raise ValueError(f"tie {int(repeated)} repeats an earlier tie")
     return Swapped(u=a, v=b, swaps=int(swaps), tries=int(tries))
-
-
-@njit(cache=True, nogil=True)
-def _csr_kernel(u, v, n):  # pragma: no cover - compiled
-    indptr = np.zeros(n + 1, dtype=np.int64)
-    for e in range(u.shape[0]):
-        indptr[u[e] + 1] += 1
-        indptr[v[e] + 1] += 1
-    for i in range(n):
-        indptr[i + 1] += indptr[i]
-    fill = indptr[:-1].copy()
-    indices = np.empty(indptr[n], dtype=np.int32)
-    for e in range(u.shape[0]):
-        indices[fill[u[e]]] = v[e]
-        fill[u[e]] += 1
-        indices[fill[v[e]]] = u[e]
-        fill[v[e]] += 1
-    for i in range(n):
-        indices[indptr[i] : indptr[i + 1]] = np.sort(indices[indptr[i] : indptr[i + 1]])
-    return indptr, indices
-
-
-def edges_to_csr_arrays(
-    u: np.ndarray, v: np.ndarray, n_nodes: int
-) -> tuple[np.ndarray, np.ndarray]:
-    """``(indptr, indices)`` of the undirected network with ties ``u[e]-v[e]``.
-
-    Each tie is stored in both rows, rows sorted by neighbour, as
-    :func:`roles.embedding.graph.to_csr` stores an undirected graph (``indptr`` int64, ``indices``
-    int32). Ties must not be self-loops (they would be stored twice).
-    """
-    return _csr_kernel(
-        np.asarray(u, dtype=np.int64), np.asarray(v, dtype=np.int64), np.int64(n_nodes)
-    )

@@ -22,6 +22,7 @@ import networkx as nx
 import numba
 import numpy as np
 
+from ..embedding.graph import csr_arrays, edge_arrays
 from ..errors import InputError
 
 __all__ = [
@@ -385,13 +386,6 @@ def _largest_by_removals(indptr, indices, order):  # pragma: no cover - compiled
 # ----------------------------------------------------------------- the network
 
 
-def _csr(src: np.ndarray, dst: np.ndarray, n: int) -> tuple[np.ndarray, np.ndarray]:
-    order = np.argsort(src, kind="stable")
-    indptr = np.zeros(n + 1, dtype=np.int64)
-    np.cumsum(np.bincount(src, minlength=n), out=indptr[1:])
-    return indptr, dst[order].astype(np.int64)
-
-
 class _Network:
     """The graph as index arrays, with what every scenario compares against."""
 
@@ -413,18 +407,11 @@ class _Network:
         self.index = {v: i for i, v in enumerate(self.nodes)}
         n = self.n = len(self.nodes)
         self.directed = graph.is_directed()
-        pairs = np.fromiter(
-            (self.index[x] for e in graph.edges() for x in e),
-            dtype=np.int64,
-            count=2 * graph.number_of_edges(),
-        ).reshape(-1, 2)
-        self.src, self.dst = pairs[:, 0], pairs[:, 1]
+        self.src, self.dst, _ = edge_arrays(graph)
         proper = self.src != self.dst  # self-loops reach nobody new
         s, d = self.src[proper], self.dst[proper]
-        both_s = np.concatenate([s, d])
-        both_d = np.concatenate([d, s])
-        self.sym = _csr(both_s, both_d, n)
-        self.out = _csr(s, d, n) if self.directed else self.sym
+        self.sym = csr_arrays(s, d, n, directed=False)[:2]
+        self.out = csr_arrays(s, d, n)[:2] if self.directed else self.sym
         if self.directed:
             self.sources = np.flatnonzero(np.bincount(d, minlength=n) == 0)
             self.sinks = np.bincount(s, minlength=n) == 0

@@ -12,7 +12,8 @@ import io
 from pathlib import Path
 
 from ..errors import InputError
-from .load import MAX_TEXT_BYTES, _check_file, _decode, _name_problem, _read_bytes, _show
+from .load.files import MAX_TEXT_BYTES, _check_file, _decode, _read_bytes, _show
+from .load.ties import _name_problem
 
 __all__ = ["read_names"]
 

@@ -12,7 +12,7 @@ import math
 import numpy as np
 
 from ...config import P_Q_RANGE
-from ...errors import ConfigError, InputError
+from ...errors import ConfigError, InputError, parameter_message
 from ..graph import CSRGraph
 from . import kernel as _kernel
 
@@ -24,19 +24,15 @@ def _check_bias(name: str, value: float) -> float:
     low, high = P_Q_RANGE
     ok = not isinstance(value, bool) and isinstance(value, (int, float, np.floating, np.integer))
     if not ok or not (math.isfinite(float(value)) and low <= float(value) <= high):
-        raise ConfigError(
-            f"The '{name}' parameter must be a number from {low:g} to {high:g}. "
-            f"Got {value!r} instead."
-        )
+        must = f"a number from {low:g} to {high:g}"
+        raise ConfigError(parameter_message(name, must, value, where="generate_walks"))
     return float(value)
 
 
 def _check_count(name: str, value: int, low: int) -> int:
     if isinstance(value, bool) or not isinstance(value, (int, np.integer)) or value < low:
-        raise ConfigError(
-            f"The '{name}' parameter must be a whole number of at least {low}. "
-            f"Got {value!r} instead."
-        )
+        must = f"a whole number of at least {low}"
+        raise ConfigError(parameter_message(name, must, value, where="generate_walks"))
     return int(value)
 
 
@@ -179,7 +175,10 @@ def visit_counts(walks: np.ndarray, n_nodes: int, *, min_length: int = 1) -> np.
     """Occurrences of each node in the walks that have at least ``min_length`` nodes."""
     walks = np.ascontiguousarray(walks, dtype=np.int32)
     if walks.size and int(walks.max()) >= n_nodes:
-        raise ValueError("walks refer to a node index >= n_nodes")
+        must = f"node indices below n_nodes ({n_nodes})"
+        raise ValueError(
+            parameter_message("walks", must, f"index {int(walks.max())}", where="visit_counts")
+        )
     return _kernel.visit_counts(walks, _kernel.row_lengths(walks), n_nodes, min_length)
 
 

@@ -28,10 +28,12 @@ Three parts, each printing a table (``--parts lfr small stability``):
 
 The tests (tests/test_groups.py) use other graphs: LFR graph seed 11, planted
 partitions of graph seeds 100-102. The LFR graphs of seeds 1-3, Florentine families and
-Les Miserables are never used by a test.
+Les Miserables are never used by a test. LFR graph seeds 4-6 (``--first-graph 4``) were
+held out of the tuning of the training and ``min_samples`` for networks of 300-3,000
+members (``benchmarks/RESULTS.md``).
 
 Run: ``.venv/bin/python benchmarks/bench_groups.py [--parts lfr small stability]
-[--graphs 3] [--before]``.
+[--graphs 3] [--first-graph 1] [--before]``.
 """
 
 from __future__ import annotations
@@ -110,14 +112,15 @@ def lfr_groupings(g: nx.Graph, seed: int) -> dict[str, Any]:
     return out
 
 
-def part_lfr(graphs: int) -> None:
-    print(f"LFR n=1000 (tau1 3, tau2 1.5, <k> 10, communities 30-100), graphs 1-{graphs}")
+def part_lfr(graphs: int, first: int = 1) -> None:
+    last = first + graphs - 1
+    print(f"LFR n=1000 (tau1 3, tau2 1.5, <k> 10, communities 30-100), graphs {first}-{last}")
     cols = ["mu", "louvain", "b_local", "b_far", "b_chosen", "local", "far", "chosen", "sec"]
     print(" ".join(f"{c:>9}" for c in cols))
     for mu in MIXING:
         rows: list[list[float]] = []
         t0 = time.perf_counter()
-        for s in range(1, graphs + 1):
+        for s in range(first, last + 1):
             g, truth = lfr(mu, s)
             got = lfr_groupings(g, s)
             rows.append(
@@ -242,10 +245,13 @@ def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--parts", nargs="+", default=["lfr", "small", "stability"])
     ap.add_argument("--graphs", type=int, default=3)
+    ap.add_argument(
+        "--first-graph", type=int, default=1, help="lfr part: first graph seed (4: held out)"
+    )
     ap.add_argument("--before", action="store_true", help="small part: the pipeline as it was")
     args = ap.parse_args()
     if "lfr" in args.parts:
-        part_lfr(args.graphs)
+        part_lfr(args.graphs, args.first_graph)
     if "small" in args.parts:
         part_small(args.before)
     if "stability" in args.parts:

@@ -1,5 +1,5 @@
-"""Walk budget: large networks get a narrower window and shorter walks, small ones keep
-the configured settings."""
+"""Walk budget: large networks get a narrower window and shorter walks; networks of 300 to
+2,727 members longer walks and a wider window; small ones more epochs."""
 
 import dataclasses
 
@@ -7,12 +7,14 @@ import pytest
 
 from roles.config import Config, EmbeddingConfig, WalkConfig, config_from_mapping
 from roles.embedding.budget import (
+    LONG_WALK_LENGTH,
     MAX_EPOCHS,
     MAX_PAIRS_PER_VIEW,
     MIN_TOKENS_PER_VIEW,
     MIN_WALK_LENGTH,
     MIN_WALKS_PER_NODE,
     MIN_WINDOW,
+    WIDE_WINDOW,
     skipgram_pairs,
     training_floor,
     walk_budget,
@@ -37,8 +39,9 @@ def _config(window: int = 2) -> Config:
     return Config(embedding=EmbeddingConfig(window=window))
 
 
-@pytest.mark.parametrize("n, m", [(375, 1500), (1000, 10000), (10000, 100000), (20000, 200000)])
-def test_small_networks_keep_the_configuration(n, m):
+@pytest.mark.parametrize("n, m", [(2728, 27280), (10000, 100000), (20000, 200000)])
+def test_networks_that_cannot_afford_longer_walks_keep_the_configuration(n, m):
+    # 2,728 x 10 walks x 80 nodes x (10 + 1) = 24,006,400 pairs > 24,000,000 (the cap).
     config = _config()
     assert _pairs(n, config) <= MAX_PAIRS_PER_VIEW  # precondition of this case
     got, note = walk_budget(n, m, config)
@@ -91,32 +94,48 @@ def test_the_window_narrows_before_the_walks_shorten():
     assert _pairs(15000, wider) > MAX_PAIRS_PER_VIEW
 
 
-def test_small_networks_keep_the_default_window():
-    # Zachary's karate club needs the wider window (see roles/budget.py); the demos too.
-    for n in (34, 198, 270, 10000):
+def test_networks_that_afford_it_get_longer_walks_and_a_wider_window():
+    # From 300 up to 2,727 members (2,727 x 10 x 80 x 11 = 23,997,600 pairs, within the
+    # cap): walks of 80 at window 10, the setting of Kojaku et al., Nat. Commun. 15, 9446
+    # (2024). Below 300 the defaults stay (the demos: 198 and 270 members).
+    for n in (300, 1000, 2727):
         got, note = walk_budget(n, 10 * n, Config())
-        assert got.embedding.window == Config().embedding.window
-        assert got.walks == Config().walks
-        assert (note is None) == (n >= 375)  # below 375 members the epochs are raised
+        assert (got.walks.walk_length, got.embedding.window) == (LONG_WALK_LENGTH, WIDE_WINDOW)
+        assert got.walks.walks_per_node == Config().walks.walks_per_node
+        assert _pairs(n, got) // got.embedding.epochs <= MAX_PAIRS_PER_VIEW  # one epoch
+        assert "80 members instead of 40" in note and "up to 10" in note
+    for n in (34, 198, 270, 299, 2728, 10000):
+        got, _ = walk_budget(n, 10 * n, Config())
+        assert got.walks == Config().walks and got.embedding.window == Config().embedding.window
+
+
+def test_walks_set_by_the_user_are_not_lengthened():
+    config = config_from_mapping({"walks": {"walks_per_node": 10, "walk_length": 40}})
+    got, note = walk_budget(1000, 10000, config)
+    assert got.walks == config.walks and got.embedding.epochs == 1
+    assert got.embedding.window == WIDE_WINDOW  # the window was not given: it widens
+    assert "walk visited" not in note
 
 
 # Training floor: tokens per view = n * walks_per_node * walk_length * epochs; the
 # expected epochs are worked by hand from MIN_TOKENS_PER_VIEW = 150,000 (our own rule,
-# roles/budget.py) and the defaults of 10 walks of 40 members.
+# roles/budget.py) and the defaults of 10 walks of 40 members below 300 members (80
+# from 300): 150,000 / (34 x 400) = 11.03 -> 12 epochs for the karate club.
 @pytest.mark.parametrize(
     "n, epochs",
-    [(15, 25), (34, 12), (80, 5), (200, 2), (374, 2), (375, 1), (1000, 1), (10, 30), (3, 30)],
+    [(15, 25), (34, 12), (80, 5), (200, 2), (299, 2), (300, 1), (1000, 1), (10, 30), (3, 30)],
 )
 def test_small_networks_train_longer(n, epochs):
     got, note = walk_budget(n, 3 * n, Config())
-    assert got.embedding.epochs == epochs == min(MAX_EPOCHS, -(-150_000 // (n * 400)))
+    steps = n * 10 * (80 if n >= 300 else 40)  # walk steps per epoch
+    assert got.embedding.epochs == epochs == min(MAX_EPOCHS, -(-150_000 // steps))
     if epochs > 1:
-        assert n * 400 * epochs >= MIN_TOKENS_PER_VIEW or epochs == MAX_EPOCHS
-        assert n * 400 * (epochs - 1) < MIN_TOKENS_PER_VIEW  # no more than needed
+        assert steps * epochs >= MIN_TOKENS_PER_VIEW or epochs == MAX_EPOCHS
+        assert steps * (epochs - 1) < MIN_TOKENS_PER_VIEW  # no more than needed
         assert f"{epochs} times instead of once" in note
         assert got.walks == Config().walks and got.embedding.window == 5
     else:
-        assert note is None and got.embedding == Config().embedding
+        assert note is None or "times instead of once" not in note
 
 
 def test_epochs_set_by_the_user_are_kept():
@@ -159,7 +178,7 @@ def test_scaled_budget_is_stable():
 
 
 def test_bigger_networks_never_get_longer_walks():
-    sizes = [1000, 10000, 20000, 25000, 50000, 100000, 300000, 1000000]
+    sizes = [2728, 10000, 20000, 25000, 50000, 100000, 300000, 1000000]
     budgets = [walk_budget(n, 10 * n, _config())[0].walks for n in sizes]
     per_node = [w.walks_per_node * w.walk_length for w in budgets]
     assert per_node == sorted(per_node, reverse=True)

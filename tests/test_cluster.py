@@ -5,7 +5,7 @@ import pytest
 from sklearn.datasets import make_blobs
 from sklearn.metrics import adjusted_rand_score
 
-from roles.embedding.cluster import cluster, default_min_cluster_size
+from roles.embedding.cluster import cluster, default_min_cluster_size, default_min_samples
 
 
 def test_well_separated_blobs_are_recovered():
@@ -92,3 +92,12 @@ def test_sampled_fit_recovers_separated_blobs():
     assert np.all((g.membership >= 0) & (g.membership <= 1))
     again = cluster(x, seed=2, fit_limit=1000)
     assert np.array_equal(g.labels, again.labels)  # same seed, same sample, same groups
+
+
+@pytest.mark.parametrize(
+    "n, expected", [(34, 5), (299, 5), (300, 3), (1000, 3), (3000, 3), (3001, 5), (20000, 5)]
+)
+def test_min_samples_is_three_only_from_300_to_3000_rows(n, expected):
+    # Our rule (roles/cluster.py, measured in benchmarks/RESULTS.md): 5 keeps the karate
+    # club's leaders at the top of the hub list; 3 finds loosely knit LFR communities.
+    assert default_min_samples(n) == expected

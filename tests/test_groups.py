@@ -86,16 +86,18 @@ def _lfr(mu: float, seed: int) -> tuple[nx.Graph, np.ndarray]:
     return plain, np.array([min(g.nodes[v]["community"]) for v in plain])
 
 
-def test_lfr_loosely_knit_communities_as_well_as_louvain():
-    # Mixing 0.4: at least networkx Louvain's NMI on the same graph (seed 11), three runs of
-    # the pipeline (seeds 0-2). Issue 18's margin of 0.05 is a mean over graphs, measured
-    # in benchmarks/bench_groups.py (on this graph the margin is smaller).
-    g, truth = _lfr(0.4, 11)
+@pytest.mark.parametrize("mu", [0.4, 0.5])
+def test_lfr_loosely_knit_communities_beyond_louvain(mu):
+    # Issue 18's target at mixing 0.4 and 0.5: at least networkx Louvain's NMI on the same
+    # graph (seed 11, never used by the benchmark) plus 0.05, mean of three runs of the
+    # pipeline (seeds 0-2). Measured when written: 0.735 against Louvain's 0.633 at 0.4,
+    # 0.337 against 0.244 at 0.5 (walks of 80 at window 10, min_samples 3).
+    g, truth = _lfr(mu, 11)
     parts = nx.community.louvain_communities(g, seed=0)
     label = {v: i for i, p in enumerate(parts) for v in p}
     louvain_nmi = nmi(truth, [label[v] for v in g])
     ours = [nmi(truth, run(g, config=_quick(s)).nodes["community"].to_numpy()) for s in range(3)]
-    assert np.mean(ours) >= louvain_nmi
+    assert np.mean(ours) >= louvain_nmi + 0.05
 
 
 def test_refine_only_raises_modularity_and_never_merges():

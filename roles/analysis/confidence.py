@@ -751,7 +751,7 @@ def stability(
         ``numpy.random.SeedSequence(seed)``, and is made exactly as the pipeline makes
         its groups (:func:`roles.embedding.embed.embed_views_then`, each view grouped by
         :func:`roles.embedding.cluster.cluster` on the members with ties, with the run's
-        ``fit_limit``, seeded by :func:`roles.pipeline.stage_seeds`).
+        ``fit_limit``, seeded by :func:`roles.seeds.StageSeeds`).
     runs : int, default 5
         Re-runs with other seeds (the pipeline spends fewer on large networks:
         :func:`roles.plan.budget`).

@@ -1,5 +1,5 @@
-"""Walk budget: more training for small networks; a narrower window, then shorter walks,
-for large ones.
+"""Walk budget: more training for small and medium networks; a narrower window, then
+shorter walks, for large ones.
 
 Small networks first. gensim lowers the skip-gram learning rate linearly over all the
 tokens of the training, so a network of a few dozen members (Zachary's karate club: 34
@@ -7,10 +7,16 @@ members x 10 walks x 40 nodes, about 14,000 tokens) stops learning before its ve
 settle: with one epoch the far view of the karate club found no groups in any of seeds
 0-9. Below :data:`MIN_TOKENS_PER_VIEW` tokens per view the epochs are raised until the
 floor is met, up to :data:`MAX_EPOCHS`: 12 epochs for the karate club (well under a
-second), 1 from 375 members up. With 10 epochs the far view found the two factions in
+second), 1 from 300 members up. With 10 epochs the far view found the two factions in
 every seed (mean NMI 0.84-0.85; ``benchmarks/RESULTS.md``, "Training budget"); on LFR
 graphs of 1,000 members three epochs did not help (mean NMI at mixing 0.4, local view,
 0.625 against 0.666), so the floor stops well below them.
+
+Medium networks next. From :data:`LONG_WALKS_FROM` (300) members, as long as a view
+stays within :data:`MAX_PAIRS_PER_VIEW` (up to 2,727 members), the walks are lengthened
+to 80 nodes and the window widened to 10 (:func:`training_raise`): on LFR graphs of
+1,000 members that raised the mean NMI at mixing 0.5 from 0.227 to 0.253 (graph seeds
+1-3) and from 0.213 to 0.262 (graph seeds 4-6) for about 3.5 times the training time.
 
 The walks and their skip-gram training cost time in proportion to the skip-gram
 (centre, context) pairs of a view: ``nodes * walks_per_node * walk_length * (window +
@@ -53,6 +59,10 @@ from ..config import Config
 __all__ = [
     "walk_budget",
     "training_floor",
+    "training_raise",
+    "LONG_WALK_LENGTH",
+    "LONG_WALKS_FROM",
+    "WIDE_WINDOW",
     "MIN_TOKENS_PER_VIEW",
     "MAX_EPOCHS",
     "skipgram_pairs",
@@ -69,6 +79,20 @@ MAX_PAIRS_PER_VIEW = 24_000_000
 
 #: Fewest skip-gram tokens (members visited by the walks, over all epochs) per view.
 MIN_TOKENS_PER_VIEW = 150_000
+
+#: Walk length (nodes) and skip-gram window of the raised training of networks from
+#: :data:`LONG_WALKS_FROM` members that fit :data:`MAX_PAIRS_PER_VIEW` with them (up to
+#: 2,727 members at 10 walks per node): the setting with which Kojaku et al. (2024)
+#: found node2vec to separate planted communities down to the detectability limit.
+LONG_WALK_LENGTH = 80
+WIDE_WINDOW = 10
+
+#: Fewest members for longer walks and a wider window. Below, a window of 10 spans whole
+#: teams: on four planted teams of 10 (``networkx.planted_partition_graph(4, 10, 0.6,
+#: 0.05, seed=100)``) it merged two teams in one of seeds 0-9 (NMI 0.857 against 1.000
+#: for the Louvain check and for walks of 40 at window 5). Our choice, not a published
+#: bound; the same bound as :data:`roles.embedding.cluster.FINER_TREE_ROWS`.
+LONG_WALKS_FROM = 300
 
 #: Most epochs the floor raises the training to.
 MAX_EPOCHS = 30
@@ -88,6 +112,87 @@ def skipgram_pairs(n_nodes: int, config: Config) -> int:
     (window + 1) * epochs``, the cost model of this module."""
     w, e = config.walks, config.embedding
     return n_nodes * w.walks_per_node * w.walk_length * (e.window + 1) * e.epochs
+
+
+def training_raise(n_nodes: int, config: Config) -> tuple[Config, str | None]:
+    """Lengthen the walks and widen the window of a network small enough to afford it.
+
+    Parameters
+    ----------
+    n_nodes : int
+        Size of the network.
+    config : Config
+        The configuration; ``config.walks.walk_length`` changes unless
+        ``config.walks_given`` is set, ``config.embedding.window`` unless
+        ``config.window_given`` is set, each only upwards, and only from
+        :data:`LONG_WALKS_FROM` members.
+
+    Returns
+    -------
+    config : Config
+        ``config`` itself when nothing is raised, otherwise a copy with walks of
+        :data:`LONG_WALK_LENGTH` nodes and a window of :data:`WIDE_WINDOW`, when the view
+        then still trains on at most :data:`MAX_PAIRS_PER_VIEW` skip-gram pairs.
+    note : str or None
+        A sentence for the report saying what was raised, or ``None``.
+
+    Notes
+    -----
+    On LFR graphs of 1,000 members (mixing 0.4 / 0.5, graph seeds 1-3, mean NMI with
+    the planted communities, ``benchmarks/RESULTS.md``, "Training for networks up to
+    2,727 members") walks of 80 at window 10 scored 0.696 / 0.275 against 0.690 / 0.227
+    for 40 at window 5, for about 3.5 times the training time (8 s against 2.3 s for
+    both views). Longer walks and wider windows let each member's vector see more of
+    its community (Kojaku, Radicchi, Ahn & Fortunato 2024).
+
+    References
+    ----------
+    .. [1] S. Kojaku, F. Radicchi, Y.-Y. Ahn and S. Fortunato, "Network community
+       detection via neural embeddings", Nature Communications 15, 9446, 2024.
+       doi:10.1038/s41467-024-52355-w
+
+    Examples
+    --------
+    >>> from roles.config import Config
+    >>> raised, _ = training_raise(1000, Config())
+    >>> raised.walks.walk_length, raised.embedding.window
+    (80, 10)
+    >>> training_raise(20000, Config())[1] is None  # 20,000 x 10 x 80 x 11 pairs: too many
+    True
+    """
+    walks, emb = config.walks, config.embedding
+    length, window = walks.walk_length, emb.window
+    if n_nodes < LONG_WALKS_FROM:
+        return config, None
+    if not getattr(config, "walks_given", False):
+        length = max(length, LONG_WALK_LENGTH)
+    if not getattr(config, "window_given", False):
+        window = max(window, WIDE_WINDOW)
+    if (length, window) == (walks.walk_length, emb.window):
+        return config, None
+    raised = dataclasses.replace(
+        config,
+        walks=dataclasses.replace(walks, walk_length=length),
+        embedding=dataclasses.replace(emb, window=window),
+    )
+    if skipgram_pairs(n_nodes, raised) > MAX_PAIRS_PER_VIEW:
+        return config, None
+    changes = []
+    if length != walks.walk_length:
+        changes.append(f"each walk visited {length} members instead of {walks.walk_length}")
+    if window != emb.window:
+        changes.append(
+            f"each member was learned from up to {window} members either side of it on a "
+            f"walk instead of up to {emb.window}"
+        )
+    note = (
+        f"This network is small enough ({n_nodes:,} members) to describe each member's "
+        f"surroundings with longer random walks: {'; '.join(changes)}. On test networks "
+        "with loosely knit communities this found them more often; it costs seconds. "
+        "To keep the settings, set walk_length in the [walks] section and window in the "
+        "[embedding] section of a configuration file."
+    )
+    return raised, note
 
 
 def training_floor(n_nodes: int, config: Config) -> tuple[Config, str | None]:
@@ -159,13 +264,17 @@ def walk_budget(n_nodes: int, n_edges: int, config: Config) -> tuple[Config, str
 
     Notes
     -----
-    Never raises a walk setting: values already at or below a floor stay as they are.
-    Applying the function to its own result changes nothing more. A small network's
-    epochs are raised first (:func:`training_floor`; its note comes first).
+    Never cuts a walk setting below its floor: values already at or below a floor stay
+    as they are. Applying the function to its own result changes nothing more. A network
+    that affords them gets longer walks and a wider window first
+    (:func:`training_raise`), then a small one more epochs (:func:`training_floor`);
+    their notes are the whole note.
     """
+    config, raise_note = training_raise(n_nodes, config)
     config, floor_note = training_floor(n_nodes, config)
-    if floor_note is not None:
-        return config, floor_note
+    notes = [text for text in (raise_note, floor_note) if text is not None]
+    if notes:
+        return config, " ".join(notes)
     if skipgram_pairs(n_nodes, config) <= MAX_PAIRS_PER_VIEW:
         return config, None
     walks, emb = config.walks, config.embedding

@@ -249,7 +249,7 @@ def test_group_hubs_ranked_by_z_unchanged():
 def _ctx(deps, *, formal=None, withheld=None, traffic=(), bridges=(), hubs=()):
     return {
         "dependencies": {"rows": deps},
-        "s": {"directed": False},
+        "directed": False,
         "roles": {
             "bridges": list(bridges),
             "hubs": list(hubs),
@@ -309,13 +309,17 @@ def test_snapshot_changes_skip_withheld_roles():
     from roles.analysis.snapshots import _role_changes
 
     nodes = pd.DataFrame({"node": ["a", "b"], "within_z": [3.0, 0.0], "betweenness": [0.5, 0]})
-    clear = SimpleNamespace(nodes=nodes, summary={"hubs": ["a"], "bridges": ["a"]})
-    withheld = SimpleNamespace(
-        nodes=nodes, summary={"hubs": [], "bridges": [], "roles_withheld": {"reason": "no groups"}}
-    )
+
+    def result(hubs: list[str], withheld: dict[str, str] | None = None) -> SimpleNamespace:
+        # The fields of roles.results.Result that _role_changes reads.
+        found = SimpleNamespace(hubs=hubs, bridges=hubs, roles_withheld=withheld, single_points=[])
+        return SimpleNamespace(nodes=nodes, findings=found)
+
+    clear = result(["a"])
+    withheld = result([], {"reason": "no groups"})
     assert {c.role for c in _role_changes(clear, clear)} == set()
     assert _role_changes(clear, withheld) == ()  # not "stopped being hub-like"
-    gone = SimpleNamespace(nodes=nodes, summary={"hubs": [], "bridges": []})
+    gone = result([])
     assert {(c.role, c.change) for c in _role_changes(clear, gone)} == {
         ("hub-like", "stopped"),
         ("bridge-like", "stopped"),

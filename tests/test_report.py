@@ -528,7 +528,7 @@ def test_no_rerun_verdicts_when_no_reruns_were_made(karate_result):
     assert "comeback" not in words(chosen) and "re-run0times" not in words(chosen)
     note = "To keep the run affordable: 0 of 3 re-runs with other seeds."
     skipped = html_of(
-        dataclasses.replace(result, summary={**result.summary, "confidence_budget": note})
+        dataclasses.replace(result, budgets=dataclasses.replace(result.budgets, confidence=note))
     )
     assert "re-runwithotherseedswasnottested" in words(skipped)
     assert "re-run0times" not in words(skipped)

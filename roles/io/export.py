@@ -429,13 +429,12 @@ def write_report_outputs(
     from ..report import render_report
 
     folder = Path(folder)
-    formal = result.summary.get("formal")
-    if isinstance(formal, Mapping) and formal.get("attribute"):
+    if result.formal is not None and result.formal.attribute:
         import dataclasses
 
         from .privacy import hide_small_group_values
 
-        nodes = hide_small_group_values(result.nodes, str(formal["attribute"]), min_group_size)
+        nodes = hide_small_group_values(result.nodes, result.formal.attribute, min_group_size)
         if nodes is not result.nodes:
             result = dataclasses.replace(result, nodes=nodes)
     table = result.nodes

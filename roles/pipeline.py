@@ -156,17 +156,10 @@ def confidence_budget(
 
 def _sampled_fit_note(groupings: Mapping[str, Grouping], n_rows: int) -> str | None:
     """A sentence for the report when HDBSCAN saw only a sample of the members."""
+    from .report.notes import sampled_fit_note
+
     fitted = {g.fitted for g in groupings.values() if 0 < g.fitted < n_rows}
-    if not fitted:
-        return None
-    return (
-        f"The groups were found among {max(fitted):,} randomly chosen members of the "
-        f"{n_rows:,} with ties; every other member joined the group of its nearest chosen "
-        "members. On test networks of 20,000 and 50,000 members with planted communities "
-        "this found the communities as well as using everyone, in a quarter to a half of "
-        "the time. To use everyone, set fit_limit = 0 in the [cluster] section of a "
-        "configuration file."
-    )
+    return sampled_fit_note(max(fitted), n_rows) if fitted else None
 
 
 @dataclass(frozen=True, eq=False)

@@ -20,6 +20,7 @@ if TYPE_CHECKING:  # the types only: the stages never import this module's users
     from .analysis.compare import Comparison
     from .analysis.confidence import Confidence
     from .analysis.customers import FinalCustomers
+    from .analysis.findings import Withheld
     from .analysis.measures import BetweennessInfo
     from .analysis.whatif import WhatIf
     from .config import Config
@@ -75,7 +76,7 @@ class Findings:
     bridges, hubs, traffic : list of str
         The members ranked bridge-like, hub-like and by betweenness (empty bridges and
         hubs when roles are withheld).
-    roles_withheld : dict or None
+    roles_withheld : Withheld or None
         Why hub-like and bridge-like are not reported
         (:func:`roles.analysis.findings.roles_withheld`).
     single_points : list of dict
@@ -96,7 +97,7 @@ class Findings:
     view_modularity: dict[str, float]
     bridges: list[str]
     hubs: list[str]
-    roles_withheld: dict[str, str] | None
+    roles_withheld: Withheld | None
     traffic: list[str]
     single_points: list[dict[str, Any]]
     modularity: ModularityCheck

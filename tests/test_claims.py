@@ -12,7 +12,7 @@ import pandas as pd
 import pytest
 
 from roles.analysis.confidence import structure_test
-from roles.analysis.findings import roles_withheld, single_points
+from roles.analysis.findings import Withheld, roles_withheld, single_points
 from roles.analysis.formal import EI_MIN_GAP, ei_expected, ei_index, ei_test
 from roles.analysis.measures import (
     BRIDGE_SHARE,
@@ -23,6 +23,7 @@ from roles.analysis.measures import (
     role_table,
 )
 from roles.analysis.whatif import cut_off_each
+from roles.report.notes import withheld_explanation
 
 # ------------------------------------------------------------------ bridge-like
 
@@ -144,12 +145,12 @@ def test_random_graph_withholds_hubs_and_bridges(seed):
     test = structure_test(G, labels, randomisations=10, seed=seed)
     assert test.tested and not test.clear
     withheld = roles_withheld(True, test)
-    assert withheld is not None and withheld["reason"] == "structure not clear"
-    assert "z = " in withheld["explanation"]
+    assert withheld is not None and withheld.reason == "structure not clear"
+    assert f"(z = {test.z:.2f})" in withheld_explanation(withheld.reason, withheld.z)
 
 
 def test_no_groups_withholds_and_clear_structure_does_not():
-    assert roles_withheld(False, None)["reason"] == "no groups"
+    assert roles_withheld(False, None).reason == "no groups"
     G = nx.ring_of_cliques(6, 6)
     test = structure_test(G, {v: v // 6 for v in G}, randomisations=10, seed=0)
     assert test.clear  # six cliques on a ring: as clear as structure gets
@@ -310,13 +311,13 @@ def test_snapshot_changes_skip_withheld_roles():
 
     nodes = pd.DataFrame({"node": ["a", "b"], "within_z": [3.0, 0.0], "betweenness": [0.5, 0]})
 
-    def result(hubs: list[str], withheld: dict[str, str] | None = None) -> SimpleNamespace:
+    def result(hubs: list[str], withheld: Withheld | None = None) -> SimpleNamespace:
         # The fields of roles.results.Result that _role_changes reads.
         found = SimpleNamespace(hubs=hubs, bridges=hubs, roles_withheld=withheld, single_points=[])
         return SimpleNamespace(nodes=nodes, findings=found)
 
     clear = result(["a"])
-    withheld = result([], {"reason": "no groups"})
+    withheld = result([], Withheld("no groups"))
     assert {c.role for c in _role_changes(clear, clear)} == set()
     assert _role_changes(clear, withheld) == ()  # not "stopped being hub-like"
     gone = result([])

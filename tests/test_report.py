@@ -663,3 +663,40 @@ def test_organisation_words_in_a_directed_network_speak_of_no_supply(supply_resu
     assert "supplier" not in section and "supply" not in section
     assert "no working tie points to" in section
     assert all("supply" not in item["text"] for item in ctx["first_looks"])
+
+
+def test_stability_words_match_summary_json():
+    # The method page writes the re-run rule and the confidence measure itself (report/
+    # holds the wording); summary.json's stability section
+    # (roles.analysis.confidence.Stability.as_dict) must say the same.
+    import numpy as np
+
+    from roles.analysis.confidence import Stability
+    from roles.report.context import _BASE, CONFIDENCE_MEASURE, _stability
+
+    st = Stability(
+        view="local",
+        confidence=np.array([0.4, 0.9, np.nan]),
+        communities={},
+        runs=1,
+        runs_requested=1,
+        seeds=(1,),
+        cross_view_ari=(0.5,),
+        cross_view_nmi=(0.5,),
+        reference_ari=0.5,
+        reference_nmi=0.5,
+        within_view_ari={"local": (1.0,)},
+        views_differ=None,
+        views_rule="",
+        budget="",
+        seconds=0.0,
+    )
+    saved = st.as_dict()
+    shown = _stability(st, _BASE)
+    assert shown is not None
+    assert shown["measure"] == saved["confidence"]["measure"] == CONFIDENCE_MEASURE
+    assert shown["rule"] == saved["community_rule"].replace(
+        "pattern", "recurs with varying members"
+    )
+    # one of the two members with ties is below 0.5
+    assert ("Members below 0.5", "50%") in shown["rows"]

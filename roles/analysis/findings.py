@@ -7,15 +7,32 @@ members with dependents and names whom each would cut off.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from typing import Any
 
 import networkx as nx
 import pandas as pd
 
-__all__ = ["roles_withheld", "single_points"]
+__all__ = ["Withheld", "roles_withheld", "single_points"]
 
 
-def roles_withheld(grouped: bool, structure: Any) -> dict[str, str] | None:
+@dataclass(frozen=True)
+class Withheld:
+    """Why hub-like and bridge-like members are not reported.
+
+    Attributes
+    ----------
+    reason : {'no groups', 'structure not clear'}
+    z : float
+        The structure test's z (NaN when it did not run); the sentence is written by
+        :func:`roles.report.notes.withheld_explanation`.
+    """
+
+    reason: str
+    z: float = float("nan")
+
+
+def roles_withheld(grouped: bool, structure: Any) -> Withheld | None:
     """Why hub-like and bridge-like members are not reported, or None when they are.
 
     Both labels are read against the communities, so they are findings only when there
@@ -30,22 +47,12 @@ def roles_withheld(grouped: bool, structure: Any) -> dict[str, str] | None:
 
     Returns
     -------
-    dict or None
-        ``{"reason": "no groups" | "structure not clear", "explanation": str}``.
+    Withheld or None
     """
     if not grouped:
-        return {
-            "reason": "no groups",
-            "explanation": "no communities were found, and hub-like and bridge-like are "
-            "defined relative to communities",
-        }
+        return Withheld("no groups")
     if structure is not None and structure.tested and not structure.clear:
-        return {
-            "reason": "structure not clear",
-            "explanation": "the communities are not clearly stronger than in randomised "
-            f"networks with the same degrees (z = {structure.z:.2f}), and hub-like and "
-            "bridge-like are defined relative to communities",
-        }
+        return Withheld("structure not clear", float(structure.z))
     return None
 
 

@@ -11,15 +11,12 @@ from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
+from ..report.notes import ISOLATED_TREATMENT, withheld_explanation
+
 if TYPE_CHECKING:
     from ..results import Result
 
 __all__ = ["summary_of"]
-
-#: What summary.json says about members with no ties.
-ISOLATED_TREATMENT = (
-    "walks of length one and zero vectors; not clustered; community 0, role 'no ties'"
-)
 
 
 def _round(x: float) -> float | None:
@@ -60,7 +57,14 @@ def summary_of(result: Result) -> dict[str, Any]:
         },
         "bridges": [str(b) for b in f.bridges],
         "hubs": [str(h) for h in f.hubs],
-        "roles_withheld": f.roles_withheld,
+        "roles_withheld": (
+            {
+                "reason": f.roles_withheld.reason,
+                "explanation": withheld_explanation(f.roles_withheld.reason, f.roles_withheld.z),
+            }
+            if f.roles_withheld is not None
+            else None
+        ),
         "traffic": [str(v) for v in f.traffic],
         "single_points_of_failure": f.single_points,
         "views": {

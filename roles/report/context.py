@@ -16,6 +16,7 @@ import numpy as np
 import pandas as pd
 
 from ..analysis.confidence import CommunityStability, Stability, StructureTest
+from ..analysis.findings import Withheld
 from ..analysis.measures import BetweennessInfo
 from ..results import Findings, FormalGroups, Result
 from . import figures
@@ -468,9 +469,9 @@ def _roles(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
     }
 
 
-def _withheld_words(withheld: Mapping[str, str], v: Mapping[str, str]) -> str:
+def _withheld_words(withheld: Withheld, v: Mapping[str, str]) -> str:
     """Why no member is called hub-like or bridge-like, in the report's words."""
-    if withheld.get("reason") == "no groups":
+    if withheld.reason == "no groups":
         return (
             f"no {v['communities']} were found, and hub-like and bridge-like only make sense "
             f"relative to {v['communities']}"

@@ -547,7 +547,7 @@ def run(
     if graph.is_directed():
         from .analysis.customers import final_customers
 
-        customers = final_customers(graph, [d["node"] for d in spof])
+        customers = final_customers(graph, [d.node for d in spof])
     findings = Findings(
         nodes=n,
         edges=graph.number_of_edges(),

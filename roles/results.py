@@ -20,7 +20,7 @@ if TYPE_CHECKING:  # the types only: the stages never import this module's users
     from .analysis.compare import Comparison
     from .analysis.confidence import Confidence
     from .analysis.customers import FinalCustomers
-    from .analysis.findings import Withheld
+    from .analysis.findings import SinglePoint, Withheld
     from .analysis.measures import BetweennessInfo
     from .analysis.whatif import WhatIf
     from .config import Config
@@ -79,7 +79,7 @@ class Findings:
     roles_withheld : Withheld or None
         Why hub-like and bridge-like are not reported
         (:func:`roles.analysis.findings.roles_withheld`).
-    single_points : list of dict
+    single_points : list of SinglePoint
         :func:`roles.analysis.findings.single_points`.
     modularity : ModularityCheck
     betweenness : BetweennessInfo or None
@@ -99,7 +99,7 @@ class Findings:
     hubs: list[str]
     roles_withheld: Withheld | None
     traffic: list[str]
-    single_points: list[dict[str, Any]]
+    single_points: list[SinglePoint]
     modularity: ModularityCheck
     betweenness: BetweennessInfo | None = None
 

@@ -96,12 +96,12 @@ def test_kite_traffic_and_who_is_cut_off():
     assert rank_traffic(table)[0] == 7
     G = nx.relabel_nodes(G, str)
     spof = single_points(G, _nodes(G, dict.fromkeys(G, 0)))
-    by_node = {e["node"]: e for e in spof}
-    assert by_node["7"]["cut_off"] == ["8", "9"] and by_node["7"]["dependents"] == 2
-    assert by_node["8"]["cut_off"] == ["9"]
-    assert by_node["8"]["one_tie_each"] is True  # 9 has one tie (to 8)
-    assert by_node["7"]["one_tie_each"] is False  # 8 has two
-    assert [e["node"] for e in spof] == ["7", "8"]
+    by_node = {e.node: e for e in spof}
+    assert by_node["7"].cut_off == ("8", "9") and by_node["7"].dependents == 2
+    assert by_node["8"].cut_off == ("9",)
+    assert by_node["8"].one_tie_each is True  # 9 has one tie (to 8)
+    assert by_node["7"].one_tie_each is False  # 8 has two
+    assert [e.node for e in spof] == ["7", "8"]
 
 
 @pytest.mark.parametrize(
@@ -120,10 +120,10 @@ def test_cut_off_names_match_networkx_components(G):
     nodes = _nodes(G, dict.fromkeys(G, 0))
     for e in single_points(G, nodes):
         H = G.copy()
-        H.remove_node(e["node"])
+        H.remove_node(e.node)
         pieces = sorted(nx.connected_components(H), key=len, reverse=True)
         expected = sorted(v for p in pieces[1:] for v in p)
-        assert e["cut_off"] == expected and len(expected) == e["dependents"]
+        assert list(e.cut_off) == expected and len(expected) == e.dependents
 
 
 def test_directed_cut_off_is_the_dominated_set():

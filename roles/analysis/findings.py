@@ -13,7 +13,7 @@ from typing import Any
 import networkx as nx
 import pandas as pd
 
-__all__ = ["Withheld", "roles_withheld", "single_points"]
+__all__ = ["SinglePoint", "Withheld", "roles_withheld", "single_points"]
 
 
 @dataclass(frozen=True)
@@ -56,7 +56,37 @@ def roles_withheld(grouped: bool, structure: Any) -> Withheld | None:
     return None
 
 
-def single_points(graph: nx.Graph, nodes: pd.DataFrame, top: int = 50) -> list[dict[str, Any]]:
+@dataclass(frozen=True)
+class SinglePoint:
+    """A member whose loss cuts others off.
+
+    Attributes
+    ----------
+    node : str
+    dependents : int
+        Members cut off (dominated in a directed network, beyond a cut vertex otherwise).
+    cut_off : tuple of str
+        Their names, sorted.
+    one_tie_each : bool
+        Every member cut off has a single recorded tie: thin evidence.
+    """
+
+    node: str
+    dependents: int
+    cut_off: tuple[str, ...]
+    one_tie_each: bool
+
+    def as_summary(self) -> dict[str, Any]:
+        """The entry of ``summary.json['single_points_of_failure']``."""
+        return {
+            "node": self.node,
+            "dependents": self.dependents,
+            "cut_off": list(self.cut_off),
+            "one_tie_each": self.one_tie_each,
+        }
+
+
+def single_points(graph: nx.Graph, nodes: pd.DataFrame, top: int = 50) -> list[SinglePoint]:
     """The ``top`` members with the most dependents, with whom each would cut off.
 
     ``cut_off`` follows :func:`roles.analysis.whatif.what_if` (all names, sorted);
@@ -78,11 +108,11 @@ def single_points(graph: nx.Graph, nodes: pd.DataFrame, top: int = 50) -> list[d
     for v, d in zip(names, worst.dependents.head(top), strict=True):
         gone = list(cut[v])
         out.append(
-            {
-                "node": v,
-                "dependents": int(d),
-                "cut_off": gone,
-                "one_tie_each": bool(gone) and all(neighbours(w) == 1 for w in gone),
-            }
+            SinglePoint(
+                node=v,
+                dependents=int(d),
+                cut_off=tuple(gone),
+                one_tie_each=bool(gone) and all(neighbours(w) == 1 for w in gone),
+            )
         )
     return out

@@ -479,7 +479,7 @@ def _column(nodes: Any, name: str) -> dict[str, float]:
 
 def _spof(findings: Findings) -> dict[str, float]:
     """Single point of failure -> its dependents."""
-    return {str(e["node"]): float(e["dependents"]) for e in findings.single_points}
+    return {str(e.node): float(e.dependents) for e in findings.single_points}
 
 
 def _role_changes(old: Any, new: Any) -> tuple[RoleChange, ...]:

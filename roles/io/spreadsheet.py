@@ -82,7 +82,7 @@ def community_rows(result: Result) -> tuple[list[str], list[list[Any]]]:
     named = {
         "bridges": [str(n) for n in found.bridges],
         "hubs": [str(n) for n in found.hubs],
-        "single points of failure": [str(s["node"]) for s in found.single_points],
+        "single points of failure": [str(s.node) for s in found.single_points],
     }
     by_name = {str(k): c for k, c in community.items()}
     header = ["community", "members", "ties inside", "ties to other communities"]

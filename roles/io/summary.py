@@ -66,7 +66,7 @@ def summary_of(result: Result) -> dict[str, Any]:
             else None
         ),
         "traffic": [str(v) for v in f.traffic],
-        "single_points_of_failure": f.single_points,
+        "single_points_of_failure": [p.as_summary() for p in f.single_points],
         "views": {
             "ari": comparison.ari if comparison else None,
             "nmi": comparison.nmi if comparison else None,

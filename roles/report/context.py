@@ -504,11 +504,11 @@ def _dependencies(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
 
     t = result.nodes.set_index("node")
     entries = result.findings.single_points[:TOP]
-    rows = [_row(t, d["node"]) for d in entries]
+    rows = [_row(t, d.node) for d in entries]
     for r, d in zip(rows, entries, strict=True):
-        r["cut_off"] = _cut_off_words(list(d.get("cut_off", [])))
-        r["n_cut_off"] = len(d.get("cut_off", []))
-        r["one_tie_each"] = bool(d.get("one_tie_each"))
+        r["cut_off"] = _cut_off_words(list(d.cut_off))
+        r["n_cut_off"] = len(d.cut_off)
+        r["one_tie_each"] = d.one_tie_each
     directed = result.findings.directed
     reach = None
     if directed and rows:
@@ -1094,7 +1094,7 @@ def _network_map(
     pos = {n: i for i, n in enumerate(members)}
     ties = [(pos[a], pos[b]) for a, b in result.graph.edges() if a in pos and b in pos]
     found = result.findings
-    key = found.hubs[:3] + found.bridges[:3] + [d["node"] for d in found.single_points[:3]]
+    key = found.hubs[:3] + found.bridges[:3] + [d.node for d in found.single_points[:3]]
     annotate = [pos[n] for n in dict.fromkeys(key) if n in pos]
     return figures.network_map(
         len(members),

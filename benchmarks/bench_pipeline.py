@@ -437,7 +437,7 @@ def part_stages(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
 
 def part_whole(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
     """The whole report as ``roles report`` makes it: read, run, write every output."""
-    import roles.report
+    import roles.report.render
     from roles.io.export import write_report_outputs
     from roles.io.load import load_edges
     from roles.pipeline import run
@@ -468,7 +468,7 @@ def part_whole(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
         effective = result.summary["parameters"]
         row["groups"] = result.summary["views"]["groups"]
         del net
-        render = roles.report.render_report
+        render = roles.report.render.render_report
         seconds: dict[str, float] = {}
 
         def timed_render(*args: Any, **kwargs: Any) -> None:
@@ -476,7 +476,7 @@ def part_whole(kind: str, n: int, seed: int, budget: bool) -> dict[str, Any]:
             render(*args, **kwargs)
             seconds["render"] = round(time.perf_counter() - start, 3)
 
-        roles.report.render_report = timed_render
+        roles.report.render.render_report = timed_render
         out = Path(tmp) / "out"
         out.mkdir()
         with meter.stage("write outputs") as row:

@@ -17,6 +17,8 @@ import sys
 import tempfile
 import time
 from pathlib import Path
+from types import SimpleNamespace
+from typing import Any
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
@@ -26,7 +28,6 @@ from bench_export import make_data  # noqa: E402
 from roles.io.export import _csv_rows  # noqa: E402
 from roles.io.output import write_csv  # noqa: E402
 from roles.io.spreadsheet import community_rows, write_nodes_xlsx  # noqa: E402
-from roles.pipeline import Result  # noqa: E402
 
 
 def _timed(fn, *args) -> tuple[float, float]:  # type: ignore[no-untyped-def]
@@ -35,7 +36,7 @@ def _timed(fn, *args) -> tuple[float, float]:  # type: ignore[no-untyped-def]
     return time.perf_counter() - wall, time.process_time() - cpu
 
 
-def _write_xlsx(path: Path, result: Result) -> None:
+def _write_xlsx(path: Path, result: Any) -> None:
     table = result.nodes
     write_nodes_xlsx(path, list(table.columns), _csv_rows(table), community_rows(result))
 
@@ -51,13 +52,11 @@ def main() -> None:
     for n in args.nodes:
         graph, table = make_data(n, n * args.ties_per_member, args.seed)
         hubs = list(table["node"][:5])
-        result = Result(
+        # The fields of roles.results.Result that community_rows reads.
+        result = SimpleNamespace(
             nodes=table,
-            summary={"hubs": hubs, "bridges": hubs[:2], "single_points_of_failure": []},
             graph=graph,
-            vectors={},
-            groupings={},
-            comparison=None,
+            findings=SimpleNamespace(hubs=hubs, bridges=hubs[:2], single_points=[]),
         )
         header = list(table.columns)
         with tempfile.TemporaryDirectory(prefix="roles-bench-xlsx-") as tmp:

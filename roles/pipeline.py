@@ -10,20 +10,20 @@ import platform
 import time
 from collections.abc import Callable, Iterator, Mapping, Sequence
 from contextlib import contextmanager
-from dataclasses import dataclass, field
 from typing import Any
 
 import networkx as nx
 import numpy as np
 import pandas as pd
 
-from .analysis.compare import Comparison, compare_views, neighbour_count
+from .analysis.compare import compare_views, neighbour_count
 from .analysis.modularity import louvain, modularity
 from .config import Config
 from .embedding.cluster import Grouping
 from .embedding.graph import CSRGraph, to_csr
 from .errors import InputError
 from .plan import ViewWork, budget, network_ties, view_grouper
+from .results import Budgets, Findings, FormalGroups, ModularityCheck, Result, RunRecord
 from .seeds import StageSeeds
 
 __all__ = ["Result", "run", "choose_community_view"]
@@ -55,38 +55,6 @@ def choose_community_view(modularity: Mapping[str, float]) -> str:
 
 
 Progress = Callable[[str], None]
-
-
-@dataclass(frozen=True, eq=False)
-class Result:
-    """Everything one run found; the report and the writers only read it.
-
-    Attributes
-    ----------
-    nodes : pandas.DataFrame
-        One row per node (see the README for the columns), most bridge-like not implied:
-        rows follow the graph's node order.
-    summary : dict
-        The content of ``summary.json``.
-    graph : networkx.Graph
-        The analysed graph (after loading fixes), node names as given.
-    vectors : dict
-        View name -> ndarray (n, d) of node vectors, rows in ``nodes`` order.
-    groupings : dict
-        View name -> :class:`~roles.embedding.cluster.Grouping` over the connected nodes.
-    comparison : Comparison
-        Agreement of the two views.
-    extras : dict
-        Further stage results the report may show (formal groups, confidence...).
-    """
-
-    nodes: pd.DataFrame
-    summary: dict[str, Any]
-    graph: nx.Graph
-    vectors: dict[str, np.ndarray]
-    groupings: dict[str, Grouping]
-    comparison: Comparison | None
-    extras: dict[str, Any] = field(default_factory=dict)
 
 
 class _Timer:
@@ -130,17 +98,6 @@ def _versions() -> dict[str, str]:
         except PackageNotFoundError:
             out[pkg] = "not installed"
     return out
-
-
-def _round(x: float) -> float | None:
-    return round(float(x), 4) if np.isfinite(x) else None
-
-
-def _betweenness_info(table: pd.DataFrame) -> dict[str, Any]:
-    import dataclasses
-
-    info = table.attrs.get("betweenness")
-    return dataclasses.asdict(info) if info is not None else {}
 
 
 def _neighbour_lists(work: Mapping[str, ViewWork]) -> tuple[np.ndarray, np.ndarray]:
@@ -394,7 +351,7 @@ def run(
                 continue
             nodes[col] = [attributes.get(name, {}).get(col, "") for name in names]
 
-    extras: dict[str, Any] = {}
+    formal = None
     if group_by:
         from .analysis.formal import brokerage, crosstab, ei_index, ei_test, formal_nmi
 
@@ -409,20 +366,20 @@ def run(
             brk = brokerage(graph, groups)
             for col in brk.columns:
                 nodes[col] = brk.loc[pd.Index(names, dtype=object), col].to_numpy()
-            extras["formal"] = {
-                "attribute": group_by,
-                "nmi": formal_nmi(groups, tied),
-                "ei_index": ei_index(graph, groups),
+            formal = FormalGroups(
+                attribute=group_by,
+                nmi=formal_nmi(groups, tied),
+                ei_index=ei_index(graph, groups),
                 # 999 label permutations, fewer on large networks (at least 99, the
                 # fewest that can reach p = 0.01): about 2e7 tie visits in all.
-                "ei_test": ei_test(
+                ei_test=ei_test(
                     graph,
                     groups,
                     permutations=min(999, max(99, 20_000_000 // max(graph.number_of_edges(), 1))),
                     seed=config.seed,
                 ),
-                "crosstab": crosstab(groups, tied),
-            }
+                crosstab=crosstab(groups, tied),
+            )
 
     grouped = groupings[community_view].n_groups > 0
     withheld = roles_withheld(grouped, confidence.structure if confidence is not None else None)
@@ -435,7 +392,7 @@ def run(
     with timer.stage("what if"):
         from .analysis.whatif import assess as what_if
 
-        extras["what_if"] = what_if(
+        scenarios = what_if(
             graph,
             communities=community_of if groupings[community_view].n_groups > 0 else None,
             betweenness=dict(zip(names, nodes["betweenness"], strict=True)),
@@ -444,83 +401,55 @@ def run(
             remove=remove,
             seed=seeds.what_if,
         )
-    n_comm = int(communities.max())
-    summary: dict[str, Any] = {
-        "nodes": n,
-        "edges": graph.number_of_edges(),
-        "directed": graph.is_directed(),
-        "isolated": {
-            "count": len(isolated),
-            "names": isolated[:50],
-            "treatment": "walks of length one and zero vectors; not clustered; "
-            "community 0, role 'no ties'",
-        },
-        "communities": n_comm,
-        "grouped": grouped,
-        "community_view": community_view,
-        "walks_over": walk_basis,
-        "view_modularity": {
-            v: round(m, 4) if np.isfinite(m) else None for v, m in view_modularity.items()
-        },
-        "bridges": [str(b) for b in bridges],
-        "hubs": [str(h) for h in hubs],
-        "roles_withheld": withheld,
-        "traffic": [str(v) for v in traffic],
-        "single_points_of_failure": single_points(graph, nodes),
-        "views": {
-            "ari": comparison.ari if comparison else None,
-            "nmi": comparison.nmi if comparison else None,
-            "neighbours_compared": comparison.k if comparison else 0,
-            "groups": {v: g.n_groups for v, g in groupings.items()},
-            "noise_share": {v: round(g.noise_share, 4) for v, g in groupings.items()},
-            "contingency": comparison.contingency.tolist() if comparison else [],
-        },
-        "modularity": {
-            "communities": round(q_found, 4),
-            "louvain": round(q_louvain, 4),
-            "louvain_groups": louvain_groups,
-            "nmi_with_louvain": round(louvain_nmi, 4),
-        },
-        "betweenness": _betweenness_info(table),
-        "confidence_budget": spend.confidence_note,
-        "walk_budget": spend.walk_note,
-        "cluster_budget": spend.cluster_note,
-        "parameters": {**config.as_dict(), "directed": graph.is_directed()},
-        "input": dict(source or {}),
-        "versions": _versions(),
-        "timings": timer.timings,
-        "view_timings": {view: w.seconds for view, w in work.items()},
-    }
-    summary["what_if"] = [r.as_summary() for r in extras["what_if"].scenarios]
-    summary["robustness"] = extras["what_if"].robustness.as_summary()
+    spof = single_points(graph, nodes)
+    customers = None
     if graph.is_directed():
         from .analysis.customers import final_customers
 
-        spof = [d["node"] for d in summary["single_points_of_failure"]]
-        summary["final_customers"] = [f.as_summary() for f in final_customers(graph, spof)]
-    if confidence is not None:
-        summary.update(confidence.as_summary())
-        extras["confidence"] = confidence
-    if "formal" in extras:
-        f = extras["formal"]
-        summary["formal"] = {
-            "attribute": f["attribute"],
-            "nmi": round(f["nmi"], 4),
-            "ei_index": {k: round(v, 4) for k, v in f["ei_index"].items()},
-            "ei_expected": {str(k): _round(r.expected) for k, r in f["ei_test"].iterrows()},
-            "ei_p_value": {str(k): _round(r.p_value) for k, r in f["ei_test"].iterrows()},
-            "ei_verdict": {str(k): str(r.verdict) for k, r in f["ei_test"].iterrows()},
-            "crosstab": {
-                str(k): {str(c): int(v) for c, v in row.items()}
-                for k, row in f["crosstab"].iterrows()
-            },
-        }
+        customers = final_customers(graph, [d.node for d in spof])
+    findings = Findings(
+        nodes=n,
+        edges=graph.number_of_edges(),
+        directed=graph.is_directed(),
+        isolated=isolated,
+        communities=int(communities.max()),
+        grouped=grouped,
+        community_view=community_view,
+        walks_over=walk_basis,
+        view_modularity=view_modularity,
+        bridges=[str(b) for b in bridges],
+        hubs=[str(h) for h in hubs],
+        roles_withheld=withheld,
+        traffic=[str(v) for v in traffic],
+        single_points=spof,
+        modularity=ModularityCheck(
+            communities=q_found,
+            louvain=q_louvain,
+            louvain_groups=louvain_groups,
+            nmi_with_louvain=louvain_nmi,
+        ),
+        betweenness=table.attrs.get("betweenness"),
+    )
+    record = RunRecord(
+        config=config,
+        input=dict(source or {}),
+        versions=_versions(),
+        timings=timer.timings,
+        view_timings={view: w.seconds for view, w in work.items()},
+    )
     return Result(
         nodes=nodes,
-        summary=summary,
         graph=graph,
         vectors=vectors,
         groupings=groupings,
         comparison=comparison,
-        extras=extras,
+        findings=findings,
+        budgets=Budgets(
+            confidence=spend.confidence_note, walk=spend.walk_note, cluster=spend.cluster_note
+        ),
+        record=record,
+        what_if=scenarios,
+        confidence=confidence,
+        formal=formal,
+        final_customers=customers,
     )

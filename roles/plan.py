@@ -30,6 +30,7 @@ from .embedding.budget import walk_budget
 from .embedding.cluster import Grouping, Ties, cluster, fitted_rows, ties_of
 from .embedding.embed import embed_views_then
 from .embedding.graph import CSRGraph
+from .report.notes import confidence_cut_note, sampled_fit_note
 from .seeds import StageSeeds, seed_list
 
 __all__ = [
@@ -120,29 +121,7 @@ def _confidence_limits(
         )
     if not notes:
         return runs, randomisations, None
-    return (
-        used_runs,
-        used_rand,
-        (
-            "To keep the run affordable: "
-            + "; ".join(notes)
-            + ". Set scale_down = false under [confidence] to spend the full budget."
-        ),
-    )
-
-
-def _sampled_fit_note(fitted: int, n_rows: int) -> str | None:
-    """A sentence for the report when HDBSCAN sees only a sample of the members."""
-    if not 0 < fitted < n_rows:
-        return None
-    return (
-        f"The groups were found among {fitted:,} randomly chosen members of the "
-        f"{n_rows:,} with ties; every other member joined the group of its nearest chosen "
-        "members. On test networks of 20,000 and 50,000 members with planted communities "
-        "this found the communities as well as using everyone, in a quarter to a half of "
-        "the time. To use everyone, set fit_limit = 0 in the [cluster] section of a "
-        "configuration file."
-    )
+    return used_runs, used_rand, confidence_cut_note(notes)
 
 
 def budget(n_nodes: int, n_tied: int, n_ties: int, config: Config) -> Budget:
@@ -188,7 +167,7 @@ def budget(n_nodes: int, n_tied: int, n_ties: int, config: Config) -> Budget:
         betweenness_sources=betweenness_sources(n_nodes),
         walk_note=walk_note,
         confidence_note=confidence_note,
-        cluster_note=_sampled_fit_note(rows, n_tied),
+        cluster_note=sampled_fit_note(rows, n_tied) if 0 < rows < n_tied else None,
     )
 
 

@@ -12,7 +12,7 @@ import pandas as pd
 import pytest
 
 from roles.analysis.confidence import structure_test
-from roles.analysis.findings import roles_withheld, single_points
+from roles.analysis.findings import Withheld, roles_withheld, single_points
 from roles.analysis.formal import EI_MIN_GAP, ei_expected, ei_index, ei_test
 from roles.analysis.measures import (
     BRIDGE_SHARE,
@@ -23,6 +23,7 @@ from roles.analysis.measures import (
     role_table,
 )
 from roles.analysis.whatif import cut_off_each
+from roles.report.notes import withheld_explanation
 
 # ------------------------------------------------------------------ bridge-like
 
@@ -95,12 +96,12 @@ def test_kite_traffic_and_who_is_cut_off():
     assert rank_traffic(table)[0] == 7
     G = nx.relabel_nodes(G, str)
     spof = single_points(G, _nodes(G, dict.fromkeys(G, 0)))
-    by_node = {e["node"]: e for e in spof}
-    assert by_node["7"]["cut_off"] == ["8", "9"] and by_node["7"]["dependents"] == 2
-    assert by_node["8"]["cut_off"] == ["9"]
-    assert by_node["8"]["one_tie_each"] is True  # 9 has one tie (to 8)
-    assert by_node["7"]["one_tie_each"] is False  # 8 has two
-    assert [e["node"] for e in spof] == ["7", "8"]
+    by_node = {e.node: e for e in spof}
+    assert by_node["7"].cut_off == ("8", "9") and by_node["7"].dependents == 2
+    assert by_node["8"].cut_off == ("9",)
+    assert by_node["8"].one_tie_each is True  # 9 has one tie (to 8)
+    assert by_node["7"].one_tie_each is False  # 8 has two
+    assert [e.node for e in spof] == ["7", "8"]
 
 
 @pytest.mark.parametrize(
@@ -119,10 +120,10 @@ def test_cut_off_names_match_networkx_components(G):
     nodes = _nodes(G, dict.fromkeys(G, 0))
     for e in single_points(G, nodes):
         H = G.copy()
-        H.remove_node(e["node"])
+        H.remove_node(e.node)
         pieces = sorted(nx.connected_components(H), key=len, reverse=True)
         expected = sorted(v for p in pieces[1:] for v in p)
-        assert e["cut_off"] == expected and len(expected) == e["dependents"]
+        assert list(e.cut_off) == expected and len(expected) == e.dependents
 
 
 def test_directed_cut_off_is_the_dominated_set():
@@ -144,12 +145,12 @@ def test_random_graph_withholds_hubs_and_bridges(seed):
     test = structure_test(G, labels, randomisations=10, seed=seed)
     assert test.tested and not test.clear
     withheld = roles_withheld(True, test)
-    assert withheld is not None and withheld["reason"] == "structure not clear"
-    assert "z = " in withheld["explanation"]
+    assert withheld is not None and withheld.reason == "structure not clear"
+    assert f"(z = {test.z:.2f})" in withheld_explanation(withheld.reason, withheld.z)
 
 
 def test_no_groups_withholds_and_clear_structure_does_not():
-    assert roles_withheld(False, None)["reason"] == "no groups"
+    assert roles_withheld(False, None).reason == "no groups"
     G = nx.ring_of_cliques(6, 6)
     test = structure_test(G, {v: v // 6 for v in G}, randomisations=10, seed=0)
     assert test.clear  # six cliques on a ring: as clear as structure gets
@@ -249,7 +250,7 @@ def test_group_hubs_ranked_by_z_unchanged():
 def _ctx(deps, *, formal=None, withheld=None, traffic=(), bridges=(), hubs=()):
     return {
         "dependencies": {"rows": deps},
-        "s": {"directed": False},
+        "directed": False,
         "roles": {
             "bridges": list(bridges),
             "hubs": list(hubs),
@@ -309,13 +310,17 @@ def test_snapshot_changes_skip_withheld_roles():
     from roles.analysis.snapshots import _role_changes
 
     nodes = pd.DataFrame({"node": ["a", "b"], "within_z": [3.0, 0.0], "betweenness": [0.5, 0]})
-    clear = SimpleNamespace(nodes=nodes, summary={"hubs": ["a"], "bridges": ["a"]})
-    withheld = SimpleNamespace(
-        nodes=nodes, summary={"hubs": [], "bridges": [], "roles_withheld": {"reason": "no groups"}}
-    )
+
+    def result(hubs: list[str], withheld: Withheld | None = None) -> SimpleNamespace:
+        # The fields of roles.results.Result that _role_changes reads.
+        found = SimpleNamespace(hubs=hubs, bridges=hubs, roles_withheld=withheld, single_points=[])
+        return SimpleNamespace(nodes=nodes, findings=found)
+
+    clear = result(["a"])
+    withheld = result([], Withheld("no groups"))
     assert {c.role for c in _role_changes(clear, clear)} == set()
     assert _role_changes(clear, withheld) == ()  # not "stopped being hub-like"
-    gone = SimpleNamespace(nodes=nodes, summary={"hubs": [], "bridges": []})
+    gone = result([])
     assert {(c.role, c.change) for c in _role_changes(clear, gone)} == {
         ("hub-like", "stopped"),
         ("bridge-like", "stopped"),

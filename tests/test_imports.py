@@ -23,14 +23,29 @@ def _modules() -> dict[str, Path]:
     return {_module_name(p): p for p in PACKAGE.rglob("*.py")}
 
 
+def _without_type_checking(tree: ast.Module) -> ast.Module:
+    """The module without its ``if TYPE_CHECKING:`` blocks: imports for annotations only
+    never run, so they tie no modules together."""
+
+    class Drop(ast.NodeTransformer):
+        def visit_If(self, node: ast.If) -> ast.AST | None:
+            test = node.test
+            name = test.id if isinstance(test, ast.Name) else getattr(test, "attr", None)
+            return None if name == "TYPE_CHECKING" else self.generic_visit(node)
+
+    return Drop().visit(tree)
+
+
 def import_graph() -> nx.DiGraph:
-    """Module -> the package modules it imports (explicitly, anywhere in its body)."""
+    """Module -> the package modules it imports (anywhere in its body, functions
+    included; ``if TYPE_CHECKING:`` blocks excluded)."""
     modules = _modules()
     graph = nx.DiGraph()
     graph.add_nodes_from(modules)
     for name, path in modules.items():
         package = name if path.name == "__init__.py" else name.rpartition(".")[0]
-        for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
+        tree = ast.parse(path.read_text(encoding="utf-8"))
+        for node in ast.walk(_without_type_checking(tree)):
             targets: list[str] = []
             if isinstance(node, ast.Import):
                 targets = [a.name for a in node.names]
@@ -46,8 +61,14 @@ def import_graph() -> nx.DiGraph:
                     for a in node.names
                 ]
             for target in targets:
-                if target in modules and target != name:
-                    graph.add_edge(name, target)
+                # Importing a.b.c first runs a/b/__init__.py: count the sub-packages on
+                # the way (not the top package, whose public API the interpreter loads
+                # before anything else in it).
+                parts = target.split(".")
+                for i in range(2, len(parts) + 1):
+                    step = ".".join(parts[:i])
+                    if step in modules and step != name and not name.startswith(step + "."):
+                        graph.add_edge(name, step)
     return graph
 
 

@@ -15,9 +15,13 @@ import pytest
 pypdf = pytest.importorskip("pypdf")
 
 from roles import run  # noqa: E402
-from roles.report import render_html, render_report, write_pdf  # noqa: E402
 from roles.report.context import TOP, build_context  # noqa: E402
-from roles.report.render import _url_fetcher  # noqa: E402
+from roles.report.render import (  # noqa: E402
+    _url_fetcher,  # noqa: E402
+    render_html,
+    render_report,
+    write_pdf,
+)
 
 MADE = "2026-01-02 03:04 UTC"
 TINY = "Zyxwvutsrq"  # a formal group of two members: below --min-group-size 5
@@ -528,7 +532,7 @@ def test_no_rerun_verdicts_when_no_reruns_were_made(karate_result):
     assert "comeback" not in words(chosen) and "re-run0times" not in words(chosen)
     note = "To keep the run affordable: 0 of 3 re-runs with other seeds."
     skipped = html_of(
-        dataclasses.replace(result, summary={**result.summary, "confidence_budget": note})
+        dataclasses.replace(result, budgets=dataclasses.replace(result.budgets, confidence=note))
     )
     assert "re-runwithotherseedswasnottested" in words(skipped)
     assert "re-run0times" not in words(skipped)
@@ -663,3 +667,40 @@ def test_organisation_words_in_a_directed_network_speak_of_no_supply(supply_resu
     assert "supplier" not in section and "supply" not in section
     assert "no working tie points to" in section
     assert all("supply" not in item["text"] for item in ctx["first_looks"])
+
+
+def test_stability_words_match_summary_json():
+    # The method page writes the re-run rule and the confidence measure itself (report/
+    # holds the wording); summary.json's stability section
+    # (roles.analysis.confidence.Stability.as_dict) must say the same.
+    import numpy as np
+
+    from roles.analysis.confidence import Stability
+    from roles.report.context import _BASE, CONFIDENCE_MEASURE, _stability
+
+    st = Stability(
+        view="local",
+        confidence=np.array([0.4, 0.9, np.nan]),
+        communities={},
+        runs=1,
+        runs_requested=1,
+        seeds=(1,),
+        cross_view_ari=(0.5,),
+        cross_view_nmi=(0.5,),
+        reference_ari=0.5,
+        reference_nmi=0.5,
+        within_view_ari={"local": (1.0,)},
+        views_differ=None,
+        views_rule="",
+        budget="",
+        seconds=0.0,
+    )
+    saved = st.as_dict()
+    shown = _stability(st, _BASE)
+    assert shown is not None
+    assert shown["measure"] == saved["confidence"]["measure"] == CONFIDENCE_MEASURE
+    assert shown["rule"] == saved["community_rule"].replace(
+        "pattern", "recurs with varying members"
+    )
+    # one of the two members with ties is below 0.5
+    assert ("Members below 0.5", "50%") in shown["rows"]

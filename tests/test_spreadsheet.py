@@ -9,7 +9,7 @@ import networkx as nx
 import openpyxl
 import pytest
 
-import roles.report
+import roles.report.render
 from roles import run
 from roles.io.export import write_report_outputs
 from roles.io.output import safe_cell
@@ -29,7 +29,7 @@ def written(tmp_path_factory):
     result = run(g, attributes=attributes)
     folder = tmp_path_factory.mktemp("xlsx")
     mp = pytest.MonkeyPatch()
-    mp.setattr(roles.report, "render_report", lambda *a, **k: None)  # no PDF needed here
+    mp.setattr(roles.report.render, "render_report", lambda *a, **k: None)  # no PDF needed here
     try:
         write_report_outputs(
             result, folder, title="t", kind="general", paper="a4", min_group_size=5, made="now"

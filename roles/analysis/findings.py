@@ -7,15 +7,32 @@ members with dependents and names whom each would cut off.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from typing import Any
 
 import networkx as nx
 import pandas as pd
 
-__all__ = ["roles_withheld", "single_points"]
+__all__ = ["SinglePoint", "Withheld", "roles_withheld", "single_points"]
 
 
-def roles_withheld(grouped: bool, structure: Any) -> dict[str, str] | None:
+@dataclass(frozen=True)
+class Withheld:
+    """Why hub-like and bridge-like members are not reported.
+
+    Attributes
+    ----------
+    reason : {'no groups', 'structure not clear'}
+    z : float
+        The structure test's z (NaN when it did not run); the sentence is written by
+        :func:`roles.report.notes.withheld_explanation`.
+    """
+
+    reason: str
+    z: float = float("nan")
+
+
+def roles_withheld(grouped: bool, structure: Any) -> Withheld | None:
     """Why hub-like and bridge-like members are not reported, or None when they are.
 
     Both labels are read against the communities, so they are findings only when there
@@ -30,26 +47,46 @@ def roles_withheld(grouped: bool, structure: Any) -> dict[str, str] | None:
 
     Returns
     -------
-    dict or None
-        ``{"reason": "no groups" | "structure not clear", "explanation": str}``.
+    Withheld or None
     """
     if not grouped:
-        return {
-            "reason": "no groups",
-            "explanation": "no communities were found, and hub-like and bridge-like are "
-            "defined relative to communities",
-        }
+        return Withheld("no groups")
     if structure is not None and structure.tested and not structure.clear:
-        return {
-            "reason": "structure not clear",
-            "explanation": "the communities are not clearly stronger than in randomised "
-            f"networks with the same degrees (z = {structure.z:.2f}), and hub-like and "
-            "bridge-like are defined relative to communities",
-        }
+        return Withheld("structure not clear", float(structure.z))
     return None
 
 
-def single_points(graph: nx.Graph, nodes: pd.DataFrame, top: int = 50) -> list[dict[str, Any]]:
+@dataclass(frozen=True)
+class SinglePoint:
+    """A member whose loss cuts others off.
+
+    Attributes
+    ----------
+    node : str
+    dependents : int
+        Members cut off (dominated in a directed network, beyond a cut vertex otherwise).
+    cut_off : tuple of str
+        Their names, sorted.
+    one_tie_each : bool
+        Every member cut off has a single recorded tie: thin evidence.
+    """
+
+    node: str
+    dependents: int
+    cut_off: tuple[str, ...]
+    one_tie_each: bool
+
+    def as_summary(self) -> dict[str, Any]:
+        """The entry of ``summary.json['single_points_of_failure']``."""
+        return {
+            "node": self.node,
+            "dependents": self.dependents,
+            "cut_off": list(self.cut_off),
+            "one_tie_each": self.one_tie_each,
+        }
+
+
+def single_points(graph: nx.Graph, nodes: pd.DataFrame, top: int = 50) -> list[SinglePoint]:
     """The ``top`` members with the most dependents, with whom each would cut off.
 
     ``cut_off`` follows :func:`roles.analysis.whatif.what_if` (all names, sorted);
@@ -71,11 +108,11 @@ def single_points(graph: nx.Graph, nodes: pd.DataFrame, top: int = 50) -> list[d
     for v, d in zip(names, worst.dependents.head(top), strict=True):
         gone = list(cut[v])
         out.append(
-            {
-                "node": v,
-                "dependents": int(d),
-                "cut_off": gone,
-                "one_tie_each": bool(gone) and all(neighbours(w) == 1 for w in gone),
-            }
+            SinglePoint(
+                node=v,
+                dependents=int(d),
+                cut_off=tuple(gone),
+                one_tie_each=bool(gone) and all(neighbours(w) == 1 for w in gone),
+            )
         )
     return out

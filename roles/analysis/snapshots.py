@@ -22,9 +22,12 @@ import itertools
 from collections import Counter, defaultdict
 from collections.abc import Iterable, Mapping
 from dataclasses import dataclass, field
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import networkx as nx
+
+if TYPE_CHECKING:
+    from ..results import Findings
 
 __all__ = [
     "MATCH_JACCARD",
@@ -474,10 +477,9 @@ def _column(nodes: Any, name: str) -> dict[str, float]:
     return {str(k): float(v) for k, v in zip(nodes["node"], nodes[name], strict=True)}
 
 
-def _spof(summary: Mapping[str, Any]) -> dict[str, float]:
-    return {
-        str(e["node"]): float(e["dependents"]) for e in summary.get("single_points_of_failure", [])
-    }
+def _spof(findings: Findings) -> dict[str, float]:
+    """Single point of failure -> its dependents."""
+    return {str(e.node): float(e.dependents) for e in findings.single_points}
 
 
 def _role_changes(old: Any, new: Any) -> tuple[RoleChange, ...]:
@@ -488,23 +490,18 @@ def _role_changes(old: Any, new: Any) -> tuple[RoleChange, ...]:
         ("bridge-like", "bridges", "betweenness"),
     )
     # Hub-like and bridge-like are not stated for a snapshot whose communities are not
-    # clear (summary "roles_withheld"): no change of them can be read across it.
-    if old.summary.get("roles_withheld") or new.summary.get("roles_withheld"):
+    # clear (Findings.roles_withheld): no change of them can be read across it.
+    if old.findings.roles_withheld or new.findings.roles_withheld:
         lists = ()
     for role, key, figure in lists:
-        a = {str(x) for x in old.summary.get(key, [])}
-        b = {str(x) for x in new.summary.get(key, [])}
+        a = {str(x) for x in getattr(old.findings, key)}
+        b = {str(x) for x in getattr(new.findings, key)}
         fa, fb = _column(old.nodes, figure), _column(new.nodes, figure)
         for name in sorted(b - a):
             out.append(RoleChange(name, role, "became", fa.get(name), fb.get(name)))
         for name in sorted(a - b):
             out.append(RoleChange(name, role, "stopped", fa.get(name), fb.get(name)))
-    da = {
-        e["node"]: float(e["dependents"]) for e in old.summary.get("single_points_of_failure", [])
-    }
-    db = {
-        e["node"]: float(e["dependents"]) for e in new.summary.get("single_points_of_failure", [])
-    }
+    da, db = _spof(old.findings), _spof(new.findings)
     ca, cb = _column(old.nodes, "dependents"), _column(new.nodes, "dependents")
     for name in sorted(set(db) - set(da)):
         out.append(RoleChange(name, "single point of failure", "became", ca.get(name), db[name]))

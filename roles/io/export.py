@@ -26,7 +26,7 @@ import pandas as pd
 from ..config import Config
 from ..embedding.graph import CSRGraph
 from ..errors import RolesError
-from ..pipeline import Result
+from ..results import Result
 from .output import write_csv
 from .spreadsheet import community_rows, write_nodes_xlsx
 
@@ -426,16 +426,15 @@ def write_report_outputs(
 ) -> None:
     """Write every output of ``roles report`` into ``folder`` (``report.pdf`` only
     when ``pdf``)."""
-    from ..report import render_report
+    from ..report.render import render_report
 
     folder = Path(folder)
-    formal = result.summary.get("formal")
-    if isinstance(formal, Mapping) and formal.get("attribute"):
+    if result.formal is not None and result.formal.attribute:
         import dataclasses
 
         from .privacy import hide_small_group_values
 
-        nodes = hide_small_group_values(result.nodes, str(formal["attribute"]), min_group_size)
+        nodes = hide_small_group_values(result.nodes, result.formal.attribute, min_group_size)
         if nodes is not result.nodes:
             result = dataclasses.replace(result, nodes=nodes)
     table = result.nodes

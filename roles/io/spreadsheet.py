@@ -17,7 +17,7 @@ from collections.abc import Iterable, Sequence
 from pathlib import Path
 from typing import Any
 
-from ..pipeline import Result
+from ..results import Result
 from .output import safe_cell
 
 __all__ = ["write_nodes_xlsx", "community_rows"]
@@ -78,13 +78,11 @@ def community_rows(result: Result) -> tuple[list[str], list[list[Any]]]:
             outside[cv] += 1
     roles = sorted(str(r) for r in table["role"].unique())
     per_role = Counter(zip(table["community"].tolist(), table["role"].astype(str), strict=True))
-    summary = result.summary
+    found = result.findings
     named = {
-        "bridges": [str(n) for n in summary.get("bridges", [])],
-        "hubs": [str(n) for n in summary.get("hubs", [])],
-        "single points of failure": [
-            str(s["node"]) for s in summary.get("single_points_of_failure", [])
-        ],
+        "bridges": [str(n) for n in found.bridges],
+        "hubs": [str(n) for n in found.hubs],
+        "single points of failure": [str(s.node) for s in found.single_points],
     }
     by_name = {str(k): c for k, c in community.items()}
     header = ["community", "members", "ties inside", "ties to other communities"]

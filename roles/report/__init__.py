@@ -1,5 +1,4 @@
-"""The printed report: result -> HTML (jinja2) -> PDF (WeasyPrint)."""
-
-from .render import render_html, render_report, write_pdf
-
-__all__ = ["render_report", "render_html", "write_pdf"]
+"""The printed report: typed results -> sentences (notes, context), figures, HTML
+(jinja2, render) -> PDF (WeasyPrint, render). Import the module you need, e.g.
+``from roles.report.render import render_report``; this package file loads nothing, so
+a stage may use the report's wording (:mod:`roles.report.notes`) without the renderer."""

@@ -13,7 +13,7 @@ from pathlib import Path
 from typing import Any
 
 from ..analysis.snapshots import Changes, CommunityEvent
-from .context import VOCABULARY, _fmt, community_names
+from .context import VOCABULARY, _fmt, community_names, crosstab_counts
 from .figures import Figure, _draw, _label
 from .render import render_html, write_pdf
 
@@ -39,9 +39,9 @@ def _names(result: Any, min_group_size: int) -> dict[int, str]:
     """Community id -> "2 (mostly Design)", named by the formal groups when given
     (:func:`roles.report.context.community_names`, which never names a small group)."""
     out = {int(c): str(c) for c in result.nodes["community"].unique() if int(c) > 0}
-    formal = result.summary.get("formal")
-    if isinstance(formal, Mapping) and formal.get("crosstab"):
-        named = community_names(formal["crosstab"], str(formal["attribute"]), min_group_size)
+    formal = result.formal
+    if formal is not None and len(formal.crosstab):
+        named = community_names(crosstab_counts(formal), formal.attribute, min_group_size)
         out.update({c: f"{c} ({name})" for c, name in named.items() if c in out})
     return out
 
@@ -255,9 +255,9 @@ def build_change_context(
         "min_group_size": min_group_size,
         "pseudonymized": pseudonymized,
         "inputs": inputs,
-        "old": old.summary,
-        "new": new.summary,
-        "seed": new.summary["parameters"]["seed"],
+        "old": old.findings,
+        "new": new.findings,
+        "seed": new.record.config.seed,
         "members": changes.members,
         "joined_shown": list(changes.members.joined[:TOP]),
         "left_shown": list(changes.members.left[:TOP]),
@@ -313,11 +313,10 @@ def build_change_context(
         # read by the shared cautions (templates/cautions.html)
         "check_next": [],
         "walks_ignored": any(
-            bool(r.summary["directed"])
-            and str(r.summary.get("walks_over", "")).startswith("ties in both directions")
+            r.findings.directed and r.findings.walks_over.startswith("ties in both directions")
             for r in (old, new)
         ),
-        "walks_over": str(new.summary.get("walks_over", "")),
+        "walks_over": new.findings.walks_over,
     }
     return ctx
 

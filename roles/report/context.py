@@ -15,7 +15,10 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from ..pipeline import Result
+from ..analysis.confidence import CommunityStability, Stability, StructureTest
+from ..analysis.findings import Withheld
+from ..analysis.measures import BetweennessInfo
+from ..results import Findings, FormalGroups, Result
 from . import figures
 from .whatif import what_if_context
 
@@ -33,6 +36,8 @@ MAP_CIRCLES = 15
 TRAFFIC_FLOOR = 0.05
 #: Final customers named per single point of failure; the rest are counted.
 FINAL_NAMES = 6
+#: Final customers of each list looked at for the names (summary.json lists as many).
+FINAL_SEEN = 50
 #: Largest network drawn whole, member by member. On the 6.3-inch text width, 300
 #: members leave about 9 mm of figure per member (a 6.3 x 5.2 in figure), room for a
 #: marker and its ties; beyond a few hundred, ties run into one grey mass and a
@@ -123,6 +128,16 @@ _SOURCES = {
 }
 
 _ROLE_ORDER = ("connector hub", "hub-like", "bridge-like", "peripheral", "member")
+
+
+def _saved(x: Any, digits: int = 4) -> float | None:
+    """``x`` as summary.json gives it: rounded to ``digits`` places, None when not finite.
+
+    Figures printed from it then match the file to the last digit shown.
+    """
+    if x is None or not np.isfinite(x):
+        return None
+    return round(float(x), digits)
 
 
 def _fmt(x: Any, digits: int = 2) -> str:
@@ -256,9 +271,9 @@ def _communities(result: Result, v: Mapping[str, str], names: Mapping[int, str])
     for (a, b), n in between.items():
         links[a][b] = n
         links[b][a] = n
-    stab = result.summary.get("stability") or {}
-    per = stab.get("communities") or {}
-    reruns = int(stab.get("runs") or 0)
+    stab = result.confidence.stability if result.confidence is not None else None
+    per = stab.communities if stab is not None else {}
+    reruns = stab.runs if stab is not None else 0
     rows = []
     for c in order[:TOP_COMMUNITIES]:
         part = found[found.community == c]
@@ -279,7 +294,7 @@ def _communities(result: Result, v: Mapping[str, str], names: Mapping[int, str])
                     else float("nan")
                 ),
                 "membership": _fmt(float(part.membership.mean())),
-                "stability": _stability_words(per.get(str(int(c))), v),
+                "stability": _stability_words(per.get(int(c)), v),
                 "key_members": list(key.head(3)),
                 "links": [{"label": int(o), "ties": n} for o, n in tied],
             }
@@ -319,27 +334,35 @@ def _communities(result: Result, v: Mapping[str, str], names: Mapping[int, str])
         # Re-runs actually made: beyond the confidence budget's size limits there are
         # none, and every community's verdict is "not re-run".
         "has_stability": bool(per) and reruns > 0,
-        "reruns_skipped": reruns == 0 and bool(result.summary.get("confidence_budget")),
-        "stable": sum(1 for x in per.values() if x.get("verdict") == "stable"),
-        "unstable": [int(k) for k in stab.get("unstable_communities", [])],
-        "median_confidence": _fmt((stab.get("confidence") or {}).get("median")),
-        "share_low": _fmt(100 * ((stab.get("confidence") or {}).get("share_below_0.5") or 0), 0),
+        "reruns_skipped": reruns == 0 and bool(result.budgets.confidence),
+        "stable": sum(1 for x in per.values() if x.verdict == "stable"),
+        "unstable": sorted(int(k) for k, x in per.items() if x.verdict == "unstable"),
+        "median_confidence": _fmt(_saved(stab.median_confidence) if stab is not None else None),
+        "share_low": _fmt(100 * (_share_low(stab) or 0), 0),
         "reruns": reruns,
         "between_ties": int(sum(between.values())),
         "inside_ties": int(sum(inside.values())),
     }
 
 
-def _stability_words(c: Mapping[str, Any] | None, v: Mapping[str, str] = _BASE) -> str:
+def _share_low(stab: Stability | None) -> float | None:
+    """Share of the members with ties whose confidence is below 0.5, as saved."""
+    if stab is None:
+        return None
+    c = stab.confidence[np.isfinite(stab.confidence)]
+    return _saved(np.mean(c < 0.5)) if c.size else None
+
+
+def _stability_words(c: CommunityStability | None, v: Mapping[str, str] = _BASE) -> str:
     """A community's re-run verdict (Hennig 2007 bands, from the pipeline) in words."""
-    if not c or c.get("verdict") in (None, "not re-run"):
+    if c is None or c.verdict == "not re-run":
         return "–"
     words = {
         "stable": "stable",
         "pattern": f"recurs with varying {v['members']}",
         "unstable": "unstable",
     }
-    return f"{words.get(c['verdict'], c['verdict'])} ({_fmt(c.get('jaccard'))})"
+    return f"{words.get(c.verdict, c.verdict)} ({_fmt(_saved(c.jaccard))})"
 
 
 # ------------------------------------------------------------------------ roles
@@ -390,16 +413,16 @@ def _neighbour_communities(result: Result, name: str, own: int) -> list[int]:
 
 
 def _roles(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
-    s = result.summary
+    found = result.findings
     t = result.nodes.set_index("node")
     connected = result.nodes[result.nodes.community > 0]
-    bridges = [_row(t, n) for n in s["bridges"][:TOP]]
+    bridges = [_row(t, n) for n in found.bridges[:TOP]]
     for r in bridges:
         r["reaches"] = _neighbour_communities(result, r["node"], r["community"])[:3]
-    hubs = [_row(t, n) for n in s["hubs"][:TOP]]
-    traffic_all = s.get("traffic", [])
+    hubs = [_row(t, n) for n in found.hubs[:TOP]]
+    traffic_all = found.traffic
     traffic = [_row(t, n) for n in traffic_all[:TOP]]
-    withheld = s.get("roles_withheld")
+    withheld = found.roles_withheld
     periph_all = connected[connected.role == "peripheral"].sort_values(
         ["degree", "participation"], kind="stable"
     )
@@ -414,9 +437,9 @@ def _roles(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
     ]
     names = connected.node.tolist()
     pos = {n: i for i, n in enumerate(names)}
-    annotate = [pos[n] for n in (s["hubs"][:3] + s["bridges"][:3]) if n in pos]
+    annotate = [pos[n] for n in (found.hubs[:3] + found.bridges[:3]) if n in pos]
     figure = None
-    if len(connected) and result.summary.get("communities", 0) >= 2 and not withheld:
+    if len(connected) and found.communities >= 2 and not withheld:
         figure = figures.role_map(
             connected.within_z.to_numpy(dtype=float),
             connected.participation.to_numpy(dtype=float),
@@ -438,17 +461,17 @@ def _roles(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
         "bridges": bridges,
         "hubs": hubs,
         "peripheral": peripheral,
-        "n_bridges": len(s["bridges"]),
-        "n_hubs": len(s["hubs"]),
+        "n_bridges": len(found.bridges),
+        "n_hubs": len(found.hubs),
         "n_peripheral": len(periph_all),
         "counts": role_counts,
         "map": figure,
     }
 
 
-def _withheld_words(withheld: Mapping[str, str], v: Mapping[str, str]) -> str:
+def _withheld_words(withheld: Withheld, v: Mapping[str, str]) -> str:
     """Why no member is called hub-like or bridge-like, in the report's words."""
-    if withheld.get("reason") == "no groups":
+    if withheld.reason == "no groups":
         return (
             f"no {v['communities']} were found, and hub-like and bridge-like only make sense "
             f"relative to {v['communities']}"
@@ -479,15 +502,14 @@ def _cut_off_words(names: list[str]) -> str:
 def _dependencies(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
     import networkx as nx
 
-    s = result.summary
     t = result.nodes.set_index("node")
-    entries = s["single_points_of_failure"][:TOP]
-    rows = [_row(t, d["node"]) for d in entries]
+    entries = result.findings.single_points[:TOP]
+    rows = [_row(t, d.node) for d in entries]
     for r, d in zip(rows, entries, strict=True):
-        r["cut_off"] = _cut_off_words(list(d.get("cut_off", [])))
-        r["n_cut_off"] = len(d.get("cut_off", []))
-        r["one_tie_each"] = bool(d.get("one_tie_each"))
-    directed = bool(s["directed"])
+        r["cut_off"] = _cut_off_words(list(d.cut_off))
+        r["n_cut_off"] = len(d.cut_off)
+        r["one_tie_each"] = d.one_tie_each
+    directed = result.findings.directed
     reach = None
     if directed and rows:
         # Presentation only: how many members lie downstream at all, beside the
@@ -506,25 +528,27 @@ def _dependencies(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
         )
     total = int((result.nodes.dependents > 0).sum())
     thin = any(r["one_tie_each"] for r in rows)
-    finals = {f["node"]: f for f in s.get("final_customers") or []}
+    finals = {f.node: f for f in result.final_customers or []}
     customers = []
     for r in rows:
         f = finals.get(r["node"])
         if f is None:
             continue
-        r["final_reached"] = int(f["reached"])
-        r["final_cut_off"] = int(f["cut_off"])
-        cut = list(f["cut_off_names"])
-        also = [n for n in f["reached_names"] if n not in set(cut)]
+        r["final_reached"] = len(f.reached)
+        r["final_cut_off"] = len(f.cut_off)
+        # The others reached are sought among the first FINAL_SEEN of each list, as
+        # summary.json gives them.
+        cut = list(f.cut_off[:FINAL_SEEN])
+        also = [n for n in f.reached[:FINAL_SEEN] if n not in set(cut)]
         customers.append(
             {
                 "node": r["node"],
-                "reached": int(f["reached"]),
-                "cut_off": int(f["cut_off"]),
+                "reached": len(f.reached),
+                "cut_off": len(f.cut_off),
                 "cut_names": cut[:FINAL_NAMES],
-                "cut_more": int(f["cut_off"]) - len(cut[:FINAL_NAMES]),
+                "cut_more": len(f.cut_off) - len(cut[:FINAL_NAMES]),
                 "also_names": also[:FINAL_NAMES],
-                "also_more": int(f["reached"]) - int(f["cut_off"]) - len(also[:FINAL_NAMES]),
+                "also_more": len(f.reached) - len(f.cut_off) - len(also[:FINAL_NAMES]),
             }
         )
     return {
@@ -570,13 +594,13 @@ def _matched(cont: np.ndarray) -> dict[int, int]:
 
 
 def _views(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
-    s = result.summary
-    views = s["views"]
+    found = result.findings
+    comparison = result.comparison
     table = result.nodes
     t = table.set_index("node")
     connected = table[table.community > 0]
-    cont = np.asarray(views.get("contingency") or [], dtype=float)
-    groups = views.get("groups", {})
+    cont = np.asarray(comparison.contingency if comparison else [], dtype=float)
+    groups = {view: g.n_groups for view, g in result.groupings.items()}
     both = groups.get("local", 0) > 0 and groups.get("far", 0) > 0
     match = _matched(cont) if both and cont.ndim == 2 else {}
     # A member "moves" when its far group is not the one most of its local group is in:
@@ -629,29 +653,32 @@ def _views(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
             titles={"local": "Local view", "far": "Far view"},
             words=v,
         )
-    params = s["parameters"].get("views", {})
-    differ = ((s.get("stability") or {}).get("views") or {}).get("differ")
+    params = result.record.config.views
+    differ = result.confidence.views_differ if result.confidence is not None else None
+    ari = comparison.ari if comparison else None
     return {
         "differ": differ,
-        "ari": _fmt(views.get("ari")),
-        "nmi": _fmt(views.get("nmi")),
-        "words": _agreement_words(views.get("ari")),
-        "k": views.get("neighbours_compared", 0),
+        "ari": _fmt(ari),
+        "nmi": _fmt(comparison.nmi if comparison else None),
+        "words": _agreement_words(ari),
+        "k": comparison.k if comparison else 0,
         "groups": groups,
-        "noise": {k: _fmt(100 * x, 0) for k, x in views.get("noise_share", {}).items()},
+        "noise": {
+            view: _fmt(100 * round(g.noise_share, 4), 0) for view, g in result.groupings.items()
+        },
         "contingency": contingency,
         "projection": projection,
         "disagree": disagree,
-        "community_view": s.get("community_view", "far"),
+        "community_view": found.community_view,
         # The chosen view first.
         "modularity": sorted(
-            ((view, _fmt(q, 3)) for view, q in (s.get("view_modularity") or {}).items()),
-            key=lambda vq: vq[0] != s.get("community_view"),
+            ((view, _fmt(_saved(q), 3)) for view, q in found.view_modularity.items()),
+            key=lambda vq: vq[0] != found.community_view,
         ),
-        "p_local": params.get("local", {}).get("p"),
-        "q_local": params.get("local", {}).get("q"),
-        "p_far": params.get("far", {}).get("p"),
-        "q_far": params.get("far", {}).get("q"),
+        "p_local": params["local"].p if "local" in params else None,
+        "q_local": params["local"].q if "local" in params else None,
+        "p_far": params["far"].p if "far" in params else None,
+        "q_far": params["far"].q if "far" in params else None,
         "low_agreement": int((connected.view_agreement < 0.2).sum()),
         "moved": int(moved.sum()),
         # Our own reading aid: when the median member shares under a tenth of its
@@ -668,18 +695,25 @@ def _views(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
 _BROKER_KINDS = ("coordinator", "itinerant", "representative", "gatekeeper", "liaison")
 
 
+def crosstab_counts(formal: FormalGroups) -> dict[str, dict[str, int]]:
+    """Formal group -> community label -> members, names as strings (as in summary.json)."""
+    return {
+        str(k): {str(c): int(n) for c, n in row.items()} for k, row in formal.crosstab.iterrows()
+    }
+
+
 def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[str, Any] | None:
-    f = result.summary.get("formal")
-    if not f:
+    f = result.formal
+    if f is None:
         return None
-    cross: Mapping[str, Mapping[str, int]] = f.get("crosstab", {})
+    cross = crosstab_counts(f)
     sizes = {str(g): int(sum(row.values())) for g, row in cross.items()}
     shown = sorted((g for g, n in sizes.items() if n >= min_group_size), key=lambda g: -sizes[g])
     hidden = [g for g in sizes if sizes[g] < min_group_size]
-    ei = {str(g): float(x) for g, x in f.get("ei_index", {}).items() if str(g) in shown}
-    attr = str(f["attribute"])
-    expected = f.get("ei_expected") or {}
-    verdict = f.get("ei_verdict") or {}
+    ei = {str(g): round(float(x), 4) for g, x in f.ei_index.items() if str(g) in shown}
+    attr = f.attribute
+    expected = {str(k): _saved(x) for k, x in f.ei_test["expected"].items()}
+    verdict = {str(k): str(x) for k, x in f.ei_test["verdict"].items()}
     ei_rows: list[dict[str, Any]] = [
         {
             "group": g,
@@ -687,7 +721,7 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
             "size": sizes[g],
             "ei": _fmt(ei[g]),
             "expected": _fmt(expected.get(g)),
-            "gap": ei[g] - float(expected[g]) if expected.get(g) is not None else 0.0,
+            "gap": ei[g] - e if (e := expected.get(g)) is not None else 0.0,
             "verdict": str(verdict.get(g, "")),
             "reading": _EI_READING.get(str(verdict.get(g, "")), _ei_band(ei[g])),
         }
@@ -700,7 +734,7 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
         (r for r in ei_rows if r["verdict"] == "more outward"), key=lambda r: -r["gap"]
     )
     figure = None
-    if shown and result.summary.get("communities", 0) >= 2:
+    if shown and result.findings.communities >= 2:
         # Members without ties (community 0) are left out: in a small team such a cell
         # would point at one person.
         cols = sorted(
@@ -714,12 +748,12 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
             table,
             row_labels=shown,
             col_labels=cols,
-            row_title=str(f["attribute"]),
+            row_title=f.attribute,
             col_title=v["community"],
             key="formal",
             words=v,
             caption=(
-                f"Rows are the values of '{f['attribute']}' given with the data, columns the "
+                f"Rows are the values of '{f.attribute}' given with the data, columns the "
                 f"{v['communities']} found; each number counts {v['members']}, and the darker "
                 f"a cell, the larger its share of the row. A row with one dark cell is one "
                 f"{v['community']}; a row spread out works across {v['communities']}. "
@@ -738,7 +772,6 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
         between = table[["itinerant", "representative", "gatekeeper", "liaison"]].sum(axis=1)
         top = table.assign(_between=between)
         top = top[top._between > 0].sort_values("_between", ascending=False, kind="stable")
-        attr = str(f["attribute"])
         for r in top.head(TOP).itertuples():
             group = str(getattr(r, attr)) if attr in table.columns else ""
             brokers.append(
@@ -748,12 +781,12 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
                     **{k: int(getattr(r, k)) for k in _BROKER_KINDS},
                 }
             )
-    nmi = float(f.get("nmi", float("nan")))
-    if result.summary.get("communities", 0) < 2:
+    nmi = round(f.nmi, 4)
+    if result.findings.communities < 2:
         nmi = float("nan")
     return {
-        "cuts": _cuts(cross, shown, str(f["attribute"])) if np.isfinite(nmi) else [],
-        "attribute": str(f["attribute"]),
+        "cuts": _cuts(cross, shown, attr) if np.isfinite(nmi) else [],
+        "attribute": attr,
         "nmi": _fmt(nmi),
         "nmi_words": _nmi_words(nmi) if np.isfinite(nmi) else "cannot be compared with it",
         "figure": figure,
@@ -766,7 +799,7 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
         "hidden": len(hidden),
         "shown": len(shown),
         "brokers": brokers,
-        **_broker_columns(table, bool(result.summary["directed"]), v),
+        **_broker_columns(table, result.findings.directed, v),
     }
 
 
@@ -884,8 +917,8 @@ _COUNT_WORDS = {
 
 
 def _method(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
-    s = result.summary
-    inp = s.get("input", {})
+    record = result.record
+    inp = record.input
 
     def words(key: str) -> str:
         return _COUNT_WORDS.get(key, key.replace("_", " ")).format(**v)
@@ -916,15 +949,15 @@ def _method(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
         for view, g in result.groupings.items()
     ]
     return {
-        "parameters": _flatten(s.get("parameters", {})),
+        "parameters": _flatten({**record.config.as_dict(), "directed": result.findings.directed}),
         "counts": counts,
         "grouping": grouping,
-        "timings": [(k, _fmt(float(t), 2)) for k, t in s.get("timings", {}).items()],
-        "total_time": _fmt(float(sum(s.get("timings", {}).values())), 1),
-        "versions": list(s.get("versions", {}).items()),
-        "structure": _structure(s.get("structure")),
-        "stability": _stability(s.get("stability"), v),
-        "betweenness": _betweenness(s.get("betweenness")),
+        "timings": [(k, _fmt(float(t), 2)) for k, t in record.timings.items()],
+        "total_time": _fmt(float(sum(record.timings.values())), 1),
+        "versions": list(record.versions.items()),
+        "structure": _structure(result.confidence.structure if result.confidence else None),
+        "stability": _stability(result.confidence.stability if result.confidence else None, v),
+        "betweenness": _betweenness(result.findings.betweenness),
         "file": inp.get("file", "(given as a graph)"),
         "nodes_file": inp.get("nodes_file"),
         "sha256": inp.get("sha256", "–"),
@@ -932,78 +965,91 @@ def _method(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
     }
 
 
-def _structure(st: Any) -> dict[str, Any] | None:
-    """The structure test's figures, as far as the pipeline gave them."""
-    if not isinstance(st, Mapping):
+def _structure(st: StructureTest | None) -> dict[str, Any] | None:
+    """The structure test's figures (None when it did not run)."""
+    if st is None:
         return None
-    mod = st.get("modularity") or {}
-    null = st.get("randomised") or {}
     rows = [
         (
             "Verdict",
             "not tested"
-            if st.get("tested") is False
-            else ("clear community structure" if st.get("clear") else "not clear"),
+            if not st.tested
+            else ("clear community structure" if st.clear else "not clear"),
         ),
         # The structure test counts every tie once, whatever its weight (the swaps move
         # ties, not weights: roles.analysis.confidence); section 7's other table uses weights.
-        ("Modularity of the communities, each tie counted once", _fmt(mod.get("communities"))),
-        ("Best modularity found in the network (ties counted once)", _fmt(mod.get("best_found"))),
+        (
+            "Modularity of the communities, each tie counted once",
+            _fmt(_saved(st.modularity_communities)),
+        ),
+        (
+            "Best modularity found in the network (ties counted once)",
+            _fmt(_saved(st.modularity_best)),
+        ),
         (
             "Best modularity in randomised networks",
-            f"{_fmt(null.get('mean'))} ± {_fmt(null.get('sd'), 3)}" if null else "–",
+            f"{_fmt(_saved(st.null_mean))} ± {_fmt(_saved(st.null_sd), 3)}",
         ),
-        ("Distance in standard deviations (z)", _fmt(st.get("z"))),
-        ("Empirical p-value", _fmt(st.get("p_value"), 3)),
-        ("Randomised networks", _fmt(st.get("randomisations"))),
+        ("Distance in standard deviations (z)", _fmt(_saved(st.z, 2))),
+        ("Empirical p-value", _fmt(_saved(st.p_value), 3)),
+        ("Randomised networks", _fmt(st.randomisations)),
     ]
     return {
         "rows": [(k, val) for k, val in rows if val not in ("–", "– ± –")],
-        "rule": str(st.get("rule", "")),
-        "budget": str(st.get("budget", "")),
+        "rule": st.rule,
+        "budget": st.budget,
     }
 
 
-def _stability(st: Any, v: Mapping[str, str] = _BASE) -> dict[str, Any] | None:
-    """The seed-stability check's figures, as far as the pipeline gave them."""
-    if not isinstance(st, Mapping) or not st.get("runs"):
+#: How each member's confidence is measured (as summary.json's stability section says).
+CONFIDENCE_MEASURE = (
+    "per member: mean over re-runs of the Jaccard index of its co-members in the reported "
+    "communities and in the re-run"
+)
+
+
+def _community_rule(v: Mapping[str, str]) -> str:
+    """The re-run verdict bands in words (Hennig 2007); "pattern" said as section 2 says it."""
+    from ..analysis.confidence import PATTERN_JACCARD, STABLE_JACCARD
+
+    return (
+        f"mean best-match Jaccard index over re-runs (Hennig 2007): stable >= {STABLE_JACCARD}, "
+        f"recurs with varying {v['members']} >= {PATTERN_JACCARD}, unstable below"
+    )
+
+
+def _stability(st: Stability | None, v: Mapping[str, str] = _BASE) -> dict[str, Any] | None:
+    """The seed-stability check's figures (None when no re-run was made)."""
+    if st is None or not st.runs:
         return None
-    conf = st.get("confidence") or {}
+    share = _share_low(st)
     rows = [
-        ("Re-runs with other seeds", _fmt(st.get("runs"))),
-        ("View re-run", str(st.get("view", "–"))),
-        ("Median member confidence", _fmt(conf.get("median"))),
-        (
-            "Members below 0.5",
-            f"{_fmt(100 * conf['share_below_0.5'], 0)}%"
-            if conf.get("share_below_0.5") is not None
-            else "–",
-        ),
+        ("Re-runs with other seeds", _fmt(st.runs)),
+        ("View re-run", st.view),
+        ("Median member confidence", _fmt(_saved(st.median_confidence))),
+        ("Members below 0.5", f"{_fmt(100 * share, 0)}%" if share is not None else "–"),
     ]
     return {
         "rows": [(k, val) for k, val in rows if val != "–"],
         # One word for one verdict across the report: section 2 says "recurs with
         # varying members" where the pipeline's rule says "pattern".
-        "rule": str(st.get("community_rule", "")).replace(
-            "pattern", f"recurs with varying {v['members']}"
-        ),
-        "measure": str(conf.get("measure", "")),
-        "budget": str(st.get("budget", "")),
+        "rule": _community_rule(v),
+        "measure": CONFIDENCE_MEASURE,
+        "budget": st.budget,
     }
 
 
-def _betweenness(b: Any) -> str | None:
-    """How betweenness was computed, from the fields of ``measures.BetweennessInfo``."""
+def _betweenness(b: BetweennessInfo | None) -> str | None:
+    """How betweenness was computed (:class:`roles.analysis.measures.BetweennessInfo`)."""
     if b is None:
         return None
-    get = b.get if isinstance(b, Mapping) else lambda k, d=None: getattr(b, k, d)
-    weighted = " along the strongest ties (distance = 1 / weight)" if get("weighted") else ""
-    if get("method") == "exact":
+    weighted = " along the strongest ties (distance = 1 / weight)" if b.weighted else ""
+    if b.method == "exact":
         return f"exact, every member a starting point (Brandes 2001){weighted}"
     return (
-        f"estimated from {_fmt(get('k'))} randomly drawn starting points{weighted}; "
-        f"largest standard error {_fmt(get('expected_error'), 4)}, "
-        f"95% bound {_fmt(get('error_bound'), 4)}"
+        f"estimated from {_fmt(b.k)} randomly drawn starting points{weighted}; "
+        f"largest standard error {_fmt(b.expected_error, 4)}, "
+        f"95% bound {_fmt(b.error_bound, 4)}"
     )
 
 
@@ -1015,9 +1061,8 @@ def _add_formal_group(result: Result, ctx: dict[str, Any], min_group_size: int) 
 
     Groups under ``min_group_size`` print as '(small group)', as in the brokerage table.
     """
-    f = result.summary.get("formal")
-    attr = str(f["attribute"]) if f else ""
-    if not f or attr not in result.nodes.columns:
+    attr = result.formal.attribute if result.formal is not None else ""
+    if not attr or attr not in result.nodes.columns:
         ctx["group_column"] = None
         return
     values = dict(zip(result.nodes.node, result.nodes[attr].astype(str), strict=True))
@@ -1048,8 +1093,8 @@ def _network_map(
     members = connected.node.tolist()
     pos = {n: i for i, n in enumerate(members)}
     ties = [(pos[a], pos[b]) for a, b in result.graph.edges() if a in pos and b in pos]
-    s = result.summary
-    key = s["hubs"][:3] + s["bridges"][:3] + [d["node"] for d in s["single_points_of_failure"][:3]]
+    found = result.findings
+    key = found.hubs[:3] + found.bridges[:3] + [d.node for d in found.single_points[:3]]
     annotate = [pos[n] for n in dict.fromkeys(key) if n in pos]
     return figures.network_map(
         len(members),
@@ -1058,18 +1103,17 @@ def _network_map(
         names=members,
         annotate=annotate,
         community_names=names,
-        seed=int(s["parameters"].get("seed", 0) or 0),
+        seed=result.record.config.seed,
         words=v,
     )
 
 
-def _without_ties(s: Mapping[str, Any]) -> dict[str, Any] | None:
-    """Names of the members without any tie (summary.json keeps up to 50)."""
-    iso = s.get("isolated") or {}
-    count = int(iso.get("count", 0))
+def _without_ties(found: Findings) -> dict[str, Any] | None:
+    """Names of the members without any tie (the first TOP_ISOLATED)."""
+    count = len(found.isolated)
     if not count:
         return None
-    shown = [str(n) for n in iso.get("names", [])][:TOP_ISOLATED]
+    shown = [str(n) for n in found.isolated[:TOP_ISOLATED]]
     return {"names": shown, "more": count - len(shown), "count": count}
 
 
@@ -1119,7 +1163,7 @@ def _check_next(ctx: Mapping[str, Any], v: Mapping[str, str], kind: str) -> list
                 "Agree who receives this report and when the data will be deleted, before "
                 "it is shared (section 6)."
             )
-    if kind == "general" and deps and ctx["s"]["directed"]:
+    if kind == "general" and deps and ctx["directed"]:
         out.append(
             f"Verify the single points of failure of section 4 ({worst}) with those concerned."
         )
@@ -1147,7 +1191,7 @@ def _first_looks(
             "who": d["node"],
             "text": f"{v['if_lost']}, cuts off {n} other "
             f"{v['member'] if n == 1 else v['members']}{names}"
-            + (_SOURCES.get(ctx["kind"], _SOURCES["general"]) if ctx["s"]["directed"] else "")
+            + (_SOURCES.get(ctx["kind"], _SOURCES["general"]) if ctx["directed"] else "")
             + (
                 f"; {'each of them has' if n != 1 else 'that one has'} a single recorded "
                 f"{v['tie']}, so check the records first"
@@ -1280,40 +1324,48 @@ def build_context(
     -------
     dict
     """
-    s = result.summary
+    found = result.findings
     v = VOCABULARY.get(kind, VOCABULARY["general"])
-    structure = s.get("structure") if isinstance(s.get("structure"), Mapping) else None
-    clear = structure.get("clear") if structure and structure.get("tested", True) else None
-    groups_found = s["views"].get("groups", {}).get(s.get("community_view", "far"), None)
+    structure = result.confidence.structure if result.confidence is not None else None
+    clear = bool(structure.clear) if structure is not None and structure.tested else None
+    check = found.modularity
     ctx: dict[str, Any] = {
         "title": title,
         "made": made,
         "paper": "A4" if paper == "a4" else "letter",
         "v": v,
         "kind": kind,
-        "s": s,
+        "found": found,
+        "directed": found.directed,
+        "seed": result.record.config.seed,
+        "budgets": result.budgets,
+        # As summary.json gives them.
+        "check": {
+            "communities": round(check.communities, 4),
+            "louvain": round(check.louvain, 4),
+            "louvain_groups": check.louvain_groups,
+            "nmi_with_louvain": round(check.nmi_with_louvain, 4),
+        },
         "min_group_size": min_group_size,
         "pseudonymized": pseudonymized,
-        "input_name": s["input"].get("file", "(given as a graph)"),
+        "input_name": result.record.input.get("file", "(given as a graph)"),
         "top": TOP,
         "fmt": _fmt,
         "clear": clear,
-        "no_groups": not s["grouped"] if "grouped" in s else groups_found == 0,
-        "isolated": s.get("isolated", {}).get("count", 0),
+        "no_groups": not found.grouped,
+        "isolated": len(found.isolated),
     }
-    f = s.get("formal") or {}
-    names = community_names(f.get("crosstab", {}), str(f["attribute"]), min_group_size) if f else {}
+    f = result.formal
+    names = community_names(crosstab_counts(f), f.attribute, min_group_size) if f else {}
     ctx["community_names"] = names
     ctx["communities"] = _communities(result, v, names)
     ctx["roles"] = _roles(result, v)
     ctx["dependencies"] = _dependencies(result, v)
     _add_formal_group(result, ctx, min_group_size)
     ctx["network_map"] = _network_map(result, v, names)
-    ctx["without_ties"] = _without_ties(s)
-    ctx["walks_ignored"] = bool(s["directed"]) and str(s.get("walks_over", "")).startswith(
-        "ties in both directions"
-    )
-    ctx["walks_over"] = str(s.get("walks_over", ""))
+    ctx["without_ties"] = _without_ties(found)
+    ctx["walks_ignored"] = found.directed and found.walks_over.startswith("ties in both directions")
+    ctx["walks_over"] = found.walks_over
     ctx["views"] = _views(result, v)
     ctx["formal"] = _formal(result, v, min_group_size)
     ctx["method"] = _method(result, v)

@@ -65,6 +65,10 @@ def _swap(obj: Any, mapping: Mapping[str, str]) -> Any:
     return obj
 
 
+#: Fields of a result that hold no names (left as they are).
+_NAMELESS = frozenset({"graph", "vectors", "groupings", "comparison"})
+
+
 def printed_names(result: Any, limit: int = NAME_LIMIT) -> Any:
     """A copy of a :class:`roles.pipeline.Result` whose names longer than ``limit`` are
     shortened (:func:`short_name`), for the report and its figures.
@@ -88,10 +92,11 @@ def printed_names(result: Any, limit: int = NAME_LIMIT) -> Any:
         mapping[name] = candidate
     import networkx as nx
 
-    return dataclasses.replace(
-        result,
-        nodes=_swap(result.nodes, mapping),
-        graph=nx.relabel_nodes(result.graph, mapping, copy=True),
-        summary=_swap(result.summary, mapping),
-        extras=_swap(result.extras, mapping),
-    )
+    # Vectors, groupings and the views' comparison hold no names.
+    changes = {
+        f.name: _swap(getattr(result, f.name), mapping)
+        for f in dataclasses.fields(result)
+        if f.init and f.name not in _NAMELESS
+    }
+    changes["graph"] = nx.relabel_nodes(result.graph, mapping, copy=True)
+    return dataclasses.replace(result, **changes)

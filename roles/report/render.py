@@ -12,7 +12,7 @@ from typing import Any
 import jinja2
 
 from .._resources import data_dir
-from ..pipeline import Result
+from ..results import Result
 from .context import build_context
 from .names import NAME_LIMIT, printed_names
 

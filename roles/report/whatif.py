@@ -1,6 +1,6 @@
 """The "if members were gone" section: removal scenarios and robustness in words.
 
-Reads the :class:`~roles.analysis.whatif.WhatIf` the pipeline stored in ``Result.extras`` and
+Reads the :class:`~roles.analysis.whatif.WhatIf` the pipeline stored in ``Result.what_if`` and
 turns it into short tables, sentences and the robustness figure. Nothing here is
 computed that the findings rest on; it only selects, rounds and words.
 """
@@ -13,7 +13,7 @@ from typing import Any
 import numpy as np
 
 from ..analysis.whatif import Removal, RobustnessCurve, WhatIf
-from ..pipeline import Result
+from ..results import Result
 from . import figures
 
 __all__ = ["what_if_context", "SECTION_TITLE", "NAMES_SHOWN"]
@@ -162,11 +162,11 @@ def what_if_context(result: Result, v: Mapping[str, str], kind: str) -> dict[str
     -------
     dict or None
     """
-    what = result.extras.get("what_if")
-    if not isinstance(what, WhatIf):
+    what = result.what_if
+    if what is None:
         return None
-    directed = bool(result.summary.get("directed"))
-    grouped = bool(result.summary.get("grouped", True))
+    directed = result.findings.directed
+    grouped = result.findings.grouped
     rob = what.robustness
     figure = figures.robustness_chart(
         rob.betweenness_order.removed,

@@ -55,6 +55,12 @@ from __future__ import annotations
 import dataclasses
 
 from ..config import Config
+from ..report.notes import (
+    longer_walks_note,
+    more_epochs_note,
+    sparser_walks_note,
+    walk_clauses,
+)
 
 __all__ = [
     "walk_budget",
@@ -177,22 +183,9 @@ def training_raise(n_nodes: int, config: Config) -> tuple[Config, str | None]:
     )
     if skipgram_pairs(n_nodes, raised) > MAX_PAIRS_PER_VIEW:
         return config, None
-    changes = []
-    if length != walks.walk_length:
-        changes.append(f"each walk visited {length} members instead of {walks.walk_length}")
-    if window != emb.window:
-        changes.append(
-            f"each member was learned from up to {window} members either side of it on a "
-            f"walk instead of up to {emb.window}"
-        )
-    note = (
-        f"This network is small enough ({n_nodes:,} members) to describe each member's "
-        f"surroundings with longer random walks: {'; '.join(changes)}. On test networks "
-        "with loosely knit communities this found them more often; it costs seconds. "
-        "To keep the settings, set walk_length in the [walks] section and window in the "
-        "[embedding] section of a configuration file."
-    )
-    return raised, note
+    changed = {"walk_length": (walks.walk_length, length), "window": (emb.window, window)}
+    changed = {k: v for k, v in changed.items() if v[0] != v[1]}
+    return raised, longer_walks_note(n_nodes, walk_clauses(changed, ("walk_length", "window")))
 
 
 def training_floor(n_nodes: int, config: Config) -> tuple[Config, str | None]:
@@ -231,15 +224,7 @@ def training_floor(n_nodes: int, config: Config) -> tuple[Config, str | None]:
     if epochs <= emb.epochs:
         return config, None
     raised = dataclasses.replace(config, embedding=dataclasses.replace(emb, epochs=epochs))
-    before = "once" if emb.epochs == 1 else f"{emb.epochs} times"
-    note = (
-        f"This network is small ({n_nodes:,} members), so the random walks that describe "
-        f"each member's surroundings were learned from {epochs} times instead of "
-        f"{before}: on a network this small, one pass stops learning before the groups "
-        "show. This costs seconds. To keep the setting, set epochs in the [embedding] "
-        "section of a configuration file."
-    )
-    return raised, note
+    return raised, more_epochs_note(n_nodes, epochs, emb.epochs)
 
 
 def walk_budget(n_nodes: int, n_edges: int, config: Config) -> tuple[Config, str | None]:
@@ -301,23 +286,11 @@ def walk_budget(n_nodes: int, n_edges: int, config: Config) -> tuple[Config, str
         walks=dataclasses.replace(walks, walks_per_node=count, walk_length=length),
         embedding=dataclasses.replace(emb, window=window),
     )
-    changes = []
-    if window != emb.window:
-        changes.append(
-            f"each member was learned from up to {window} members either side of it on a "
-            f"walk instead of up to {emb.window}"
-        )
-    if length != walks.walk_length:
-        changes.append(f"each walk visited {length} members instead of {walks.walk_length}")
-    if count != walks.walks_per_node:
-        changes.append(f"{count} walks started from each member instead of {walks.walks_per_node}")
-    note = (
-        f"This network is large ({n_nodes:,} members, {n_edges:,} ties), so the random "
-        f"walks that describe each member's surroundings were used more sparingly: "
-        f"{'; '.join(changes)}. This keeps the analysis within minutes. On test "
-        "networks with clearly separated communities it makes little difference; where "
-        "communities are loosely knit, the groups are less reliable. To keep the full "
-        "settings, set walks_per_node and walk_length in the [walks] section and window "
-        "in the [embedding] section of a configuration file."
-    )
-    return scaled, note
+    changed = {
+        "window": (emb.window, window),
+        "walk_length": (walks.walk_length, length),
+        "walks_per_node": (walks.walks_per_node, count),
+    }
+    changed = {k: v for k, v in changed.items() if v[0] != v[1]}
+    clauses = walk_clauses(changed, ("window", "walk_length", "walks_per_node"))
+    return scaled, sparser_walks_note(n_nodes, n_edges, clauses)

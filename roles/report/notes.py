@@ -8,6 +8,10 @@ from __future__ import annotations
 
 __all__ = [
     "ISOLATED_TREATMENT",
+    "walk_clauses",
+    "longer_walks_note",
+    "more_epochs_note",
+    "sparser_walks_note",
     "sampled_fit_note",
     "confidence_cut_note",
     "withheld_explanation",
@@ -17,6 +21,59 @@ __all__ = [
 ISOLATED_TREATMENT = (
     "walks of length one and zero vectors; not clustered; community 0, role 'no ties'"
 )
+
+
+def walk_clauses(changed: dict[str, tuple[int, int]], order: tuple[str, ...]) -> list[str]:
+    """One clause per changed walk setting (``name -> (before, after)``), in ``order``.
+
+    Examples
+    --------
+    >>> walk_clauses({"walk_length": (40, 80)}, ("window", "walk_length"))
+    ['each walk visited 80 members instead of 40']
+    """
+    words = {
+        "window": "each member was learned from up to {1} members either side of it on a "
+        "walk instead of up to {0}",
+        "walk_length": "each walk visited {1} members instead of {0}",
+        "walks_per_node": "{1} walks started from each member instead of {0}",
+    }
+    return [words[k].format(*changed[k]) for k in order if k in changed]
+
+
+def longer_walks_note(n_nodes: int, clauses: list[str]) -> str:
+    """Why a network of a few hundred to a few thousand members got longer walks."""
+    return (
+        f"This network is small enough ({n_nodes:,} members) to describe each member's "
+        f"surroundings with longer random walks: {'; '.join(clauses)}. On test networks "
+        "with loosely knit communities this found them more often; it costs seconds. "
+        "To keep the settings, set walk_length in the [walks] section and window in the "
+        "[embedding] section of a configuration file."
+    )
+
+
+def more_epochs_note(n_nodes: int, epochs: int, before: int) -> str:
+    """Why a small network's walks were learned from more than once."""
+    was = "once" if before == 1 else f"{before} times"
+    return (
+        f"This network is small ({n_nodes:,} members), so the random walks that describe "
+        f"each member's surroundings were learned from {epochs} times instead of "
+        f"{was}: on a network this small, one pass stops learning before the groups "
+        "show. This costs seconds. To keep the setting, set epochs in the [embedding] "
+        "section of a configuration file."
+    )
+
+
+def sparser_walks_note(n_nodes: int, n_edges: int, clauses: list[str]) -> str:
+    """Why a large network's walks were cut back."""
+    return (
+        f"This network is large ({n_nodes:,} members, {n_edges:,} ties), so the random "
+        f"walks that describe each member's surroundings were used more sparingly: "
+        f"{'; '.join(clauses)}. This keeps the analysis within minutes. On test "
+        "networks with clearly separated communities it makes little difference; where "
+        "communities are loosely knit, the groups are less reliable. To keep the full "
+        "settings, set walks_per_node and walk_length in the [walks] section and window "
+        "in the [embedding] section of a configuration file."
+    )
 
 
 def sampled_fit_note(fitted: int, members: int) -> str:

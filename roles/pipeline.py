@@ -40,12 +40,14 @@ def choose_community_view(modularity: Mapping[str, float]) -> str:
     """The view whose groups have the higher modularity on this network.
 
     Neither view wins everywhere. With the groups chosen with the network's ties
-    (:func:`roles.embedding.cluster.cluster`), mean NMI on LFR graphs of 1,000 members, mixing
-    0.1-0.5 (benchmarks/bench_groups.py, 2026-12-04): local 0.999 / 0.991 / 0.948 /
-    0.679 / 0.238, far 0.999 / 0.990 / 0.943 / 0.635 / 0.209, the view of higher
-    modularity 0.999 / 0.990 / 0.953 / 0.690 / 0.227: ahead of both at mixing 0.3 and
-    0.4, behind the local view at 0.5. Modularity (Newman 2006) measured on the network
-    itself decides per run; a view that found no groups never wins.
+    (:func:`roles.embedding.cluster.cluster`) and the training of networks of 300 to
+    2,727 members raised (:mod:`roles.embedding.budget`), mean NMI on LFR graphs of 1,000
+    members, mixing 0.1-0.5 (benchmarks/bench_groups.py, graphs 1-3, 2026-12-04
+    evening): local 0.999 / 0.991 / 0.957 / 0.698 / 0.275, far 0.999 / 0.990 / 0.956 /
+    0.685 / 0.274, the view of higher modularity 0.999 / 0.990 / 0.958 / 0.696 / 0.275:
+    ahead of both at mixing 0.3, within 0.002 of the better view elsewhere. Modularity
+    (Newman 2006) measured on the network itself decides per run; a view that found no
+    groups never wins.
     """
     scores = {v: (m if np.isfinite(m) else -np.inf) for v, m in modularity.items()}
     best = max(scores.values())

@@ -820,14 +820,14 @@ def stability(
     if runs < 0:
         raise parameter_error("runs", "a whole number of at least 0", runs)
     idx = np.flatnonzero(_connected(csr))
-    used = runs  # how many a network's size affords is the run recipe's (roles.plan.budget)
-    note = f"{used} re-runs with other seeds, one after the other"
+    # How many re-runs a network's size affords is the run recipe's (roles.plan.budget).
+    note = f"{runs} re-runs with other seeds, one after the other"
     other = "far" if view == "local" else "local"
     ref = {view: reference_labels[idx]}
     if other_labels is not None:
         ref[other] = other_labels[idx]
 
-    seeds = seed_list(seed, used, avoid=config.seed)
+    seeds = seed_list(seed, runs, avoid=config.seed)
     node_sum = np.zeros(len(idx))
     best_runs: list[np.ndarray] = []
     cross_ari: list[float] = []

@@ -16,11 +16,15 @@ from ..report.notes import ISOLATED_TREATMENT, withheld_explanation
 if TYPE_CHECKING:
     from ..results import Result
 
-__all__ = ["summary_of"]
+__all__ = ["summary_of", "saved"]
 
 
-def _round(x: float) -> float | None:
-    return round(float(x), 4) if np.isfinite(x) else None
+def saved(x: Any, digits: int = 4) -> float | None:
+    """``x`` as summary.json gives it: rounded to ``digits`` places, None when missing or
+    not finite (the report prints its figures through this too, so the two agree)."""
+    if x is None or not np.isfinite(x):
+        return None
+    return round(float(x), digits)
 
 
 def summary_of(result: Result) -> dict[str, Any]:
@@ -52,9 +56,7 @@ def summary_of(result: Result) -> dict[str, Any]:
         "grouped": f.grouped,
         "community_view": f.community_view,
         "walks_over": f.walks_over,
-        "view_modularity": {
-            v: round(m, 4) if np.isfinite(m) else None for v, m in f.view_modularity.items()
-        },
+        "view_modularity": {v: saved(m) for v, m in f.view_modularity.items()},
         "bridges": [str(b) for b in f.bridges],
         "hubs": [str(h) for h in f.hubs],
         "roles_withheld": (
@@ -104,8 +106,8 @@ def summary_of(result: Result) -> dict[str, Any]:
             "attribute": g.attribute,
             "nmi": round(g.nmi, 4),
             "ei_index": {k: round(v, 4) for k, v in g.ei_index.items()},
-            "ei_expected": {str(k): _round(r.expected) for k, r in g.ei_test.iterrows()},
-            "ei_p_value": {str(k): _round(r.p_value) for k, r in g.ei_test.iterrows()},
+            "ei_expected": {str(k): saved(r.expected) for k, r in g.ei_test.iterrows()},
+            "ei_p_value": {str(k): saved(r.p_value) for k, r in g.ei_test.iterrows()},
             "ei_verdict": {str(k): str(r.verdict) for k, r in g.ei_test.iterrows()},
             "crosstab": {
                 str(k): {str(c): int(v) for c, v in row.items()} for k, row in g.crosstab.iterrows()

@@ -18,6 +18,7 @@ import pandas as pd
 from ..analysis.confidence import CommunityStability, Stability, StructureTest
 from ..analysis.findings import Withheld
 from ..analysis.measures import BetweennessInfo
+from ..io.summary import saved
 from ..results import Findings, FormalGroups, Result
 from . import figures
 from .whatif import what_if_context
@@ -128,16 +129,6 @@ _SOURCES = {
 }
 
 _ROLE_ORDER = ("connector hub", "hub-like", "bridge-like", "peripheral", "member")
-
-
-def _saved(x: Any, digits: int = 4) -> float | None:
-    """``x`` as summary.json gives it: rounded to ``digits`` places, None when not finite.
-
-    Figures printed from it then match the file to the last digit shown.
-    """
-    if x is None or not np.isfinite(x):
-        return None
-    return round(float(x), digits)
 
 
 def _fmt(x: Any, digits: int = 2) -> str:
@@ -337,7 +328,7 @@ def _communities(result: Result, v: Mapping[str, str], names: Mapping[int, str])
         "reruns_skipped": reruns == 0 and bool(result.budgets.confidence),
         "stable": sum(1 for x in per.values() if x.verdict == "stable"),
         "unstable": sorted(int(k) for k, x in per.items() if x.verdict == "unstable"),
-        "median_confidence": _fmt(_saved(stab.median_confidence) if stab is not None else None),
+        "median_confidence": _fmt(saved(stab.median_confidence) if stab is not None else None),
         "share_low": _fmt(100 * (_share_low(stab) or 0), 0),
         "reruns": reruns,
         "between_ties": int(sum(between.values())),
@@ -350,7 +341,7 @@ def _share_low(stab: Stability | None) -> float | None:
     if stab is None:
         return None
     c = stab.confidence[np.isfinite(stab.confidence)]
-    return _saved(np.mean(c < 0.5)) if c.size else None
+    return saved(np.mean(c < 0.5)) if c.size else None
 
 
 def _stability_words(c: CommunityStability | None, v: Mapping[str, str] = _BASE) -> str:
@@ -362,7 +353,7 @@ def _stability_words(c: CommunityStability | None, v: Mapping[str, str] = _BASE)
         "pattern": f"recurs with varying {v['members']}",
         "unstable": "unstable",
     }
-    return f"{words.get(c.verdict, c.verdict)} ({_fmt(_saved(c.jaccard))})"
+    return f"{words.get(c.verdict, c.verdict)} ({_fmt(saved(c.jaccard))})"
 
 
 # ------------------------------------------------------------------------ roles
@@ -672,7 +663,7 @@ def _views(result: Result, v: Mapping[str, str]) -> dict[str, Any]:
         "community_view": found.community_view,
         # The chosen view first.
         "modularity": sorted(
-            ((view, _fmt(_saved(q), 3)) for view, q in found.view_modularity.items()),
+            ((view, _fmt(saved(q), 3)) for view, q in found.view_modularity.items()),
             key=lambda vq: vq[0] != found.community_view,
         ),
         "p_local": params["local"].p if "local" in params else None,
@@ -712,7 +703,7 @@ def _formal(result: Result, v: Mapping[str, str], min_group_size: int) -> dict[s
     hidden = [g for g in sizes if sizes[g] < min_group_size]
     ei = {str(g): round(float(x), 4) for g, x in f.ei_index.items() if str(g) in shown}
     attr = f.attribute
-    expected = {str(k): _saved(x) for k, x in f.ei_test["expected"].items()}
+    expected = {str(k): saved(x) for k, x in f.ei_test["expected"].items()}
     verdict = {str(k): str(x) for k, x in f.ei_test["verdict"].items()}
     ei_rows: list[dict[str, Any]] = [
         {
@@ -980,18 +971,18 @@ def _structure(st: StructureTest | None) -> dict[str, Any] | None:
         # ties, not weights: roles.analysis.confidence); section 7's other table uses weights.
         (
             "Modularity of the communities, each tie counted once",
-            _fmt(_saved(st.modularity_communities)),
+            _fmt(saved(st.modularity_communities)),
         ),
         (
             "Best modularity found in the network (ties counted once)",
-            _fmt(_saved(st.modularity_best)),
+            _fmt(saved(st.modularity_best)),
         ),
         (
             "Best modularity in randomised networks",
-            f"{_fmt(_saved(st.null_mean))} ± {_fmt(_saved(st.null_sd), 3)}",
+            f"{_fmt(saved(st.null_mean))} ± {_fmt(saved(st.null_sd), 3)}",
         ),
-        ("Distance in standard deviations (z)", _fmt(_saved(st.z, 2))),
-        ("Empirical p-value", _fmt(_saved(st.p_value), 3)),
+        ("Distance in standard deviations (z)", _fmt(saved(st.z, 2))),
+        ("Empirical p-value", _fmt(saved(st.p_value), 3)),
         ("Randomised networks", _fmt(st.randomisations)),
     ]
     return {
@@ -1026,7 +1017,7 @@ def _stability(st: Stability | None, v: Mapping[str, str] = _BASE) -> dict[str, 
     rows = [
         ("Re-runs with other seeds", _fmt(st.runs)),
         ("View re-run", st.view),
-        ("Median member confidence", _fmt(_saved(st.median_confidence))),
+        ("Median member confidence", _fmt(saved(st.median_confidence))),
         ("Members below 0.5", f"{_fmt(100 * share, 0)}%" if share is not None else "–"),
     ]
     return {
